@@ -5,8 +5,24 @@ import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
 const config = {
 	preprocess: vitePreprocess(),
 	kit: {
-		// SvelteKit's own origin check for form posts stays on (default); API routes add their own.
-		adapter: adapter()
+		// SvelteKit's own origin check for form posts stays on (default); API routes add their own in hooks.server.ts.
+		adapter: adapter(),
+		csp: {
+			mode: 'auto',
+			directives: {
+				'default-src': ['self'],
+				'script-src': ['self'],
+				// Svelte transitions and chart libraries set inline styles.
+				'style-src': ['self', 'unsafe-inline'],
+				'img-src': ['self', 'data:'],
+				'font-src': ['self'],
+				'connect-src': ['self'],
+				'form-action': ['self'],
+				'frame-ancestors': ['none'],
+				'base-uri': ['self'],
+				'object-src': ['none']
+			}
+		}
 	}
 };
 

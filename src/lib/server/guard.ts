@@ -1,0 +1,65 @@
+/**
+ * The one place that decides who may do what. Every load, action and API route calls it.
+ * viewer reads; editor also creates and edits; admin also deletes and manages members;
+ * owner also holds billing and may delete the team. A non-member gets 404, never 403,
+ * so the existence of another team's resources does not leak.
+ */
+import { error, redirect, type RequestEvent } from '@sveltejs/kit';
+import type { Role } from './db/schema.js';
+import * as teams from './teams.js';
+import * as projects from './projects.js';
+
+export type Need = 'read' | 'edit' | 'manage' | 'own';
+
+const roleRank: Record<Role, number> = { viewer: 0, editor: 1, admin: 2, owner: 3 };
+const needRank: Record<Need, number> = { read: 0, edit: 1, manage: 2, own: 3 };
+const needWords: Record<Need, string> = {
+	read: 'read',
+	edit: 'create or edit (editor or above)',
+	manage: 'delete or manage members (admin or above)',
+	own: 'manage billing or delete the team (owner)'
+};
+
+export interface SignedInUser {
+	id: string;
+	email: string;
+	name: string | null;
+}
+
+export function allows(role: Role, need: Need): boolean {
+	return roleRank[role] >= needRank[need];
+}
+
+const isApi = (event: RequestEvent) => event.url.pathname.startsWith('/api/');
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** The signed-in user; pages redirect to sign-in, API routes answer 401. */
+export async function user(event: RequestEvent): Promise<SignedInUser> {
+	const session = await event.locals.auth();
+	const u = session?.user;
+	if (!u?.id || !u.email) {
+		if (isApi(event)) error(401, { code: 'unauthenticated', message: 'Sign in first.' });
+		const back = event.url.pathname + event.url.search;
+		redirect(303, `/signin?redirectTo=${encodeURIComponent(back)}`);
+	}
+	return { id: u.id, email: u.email, name: u.name ?? null };
+}
+
+/** The user's membership in a team, checked against what they need to do. */
+export async function team(event: RequestEvent, teamId: string, need: Need) {
+	const me = await user(event);
+	const m = UUID.test(teamId) ? await teams.membership(teamId, me.id) : null;
+	if (!m) error(404, { code: 'not_found', message: 'No such team.' });
+	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
+	return { user: me, team: m, role: m.role };
+}
+
+/** A project and the user's membership in its team, checked against what they need to do. */
+export async function project(event: RequestEvent, projectId: string, need: Need) {
+	const me = await user(event);
+	const p = UUID.test(projectId) ? await projects.get(projectId) : null;
+	const m = p ? await teams.membership(p.teamId, me.id) : null;
+	if (!p || !m) error(404, { code: 'not_found', message: 'No such project.' });
+	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
+	return { user: me, team: m, role: m.role, project: p };
+}
