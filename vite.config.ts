@@ -14,25 +14,14 @@ export default defineConfig({
 				test: { name: 'unit', environment: 'node', include: ['tests/unit/**/*.test.ts'], testTimeout: 120_000 }
 			},
 			{
+				// Integration and end-to-end tests share one throwaway database, inbox and app server.
 				extends: true,
 				test: {
-					name: 'integration',
+					name: 'app',
 					environment: 'node',
-					include: ['tests/integration/**/*.test.ts'],
-					globalSetup: ['tests/setup/database.ts'],
-					testTimeout: 60_000,
-					hookTimeout: 120_000,
-					fileParallelism: false
-				}
-			},
-			{
-				extends: true,
-				test: {
-					name: 'e2e',
-					environment: 'node',
-					include: ['tests/e2e/**/*.test.ts'],
+					include: ['tests/integration/**/*.test.ts', 'tests/e2e/**/*.test.ts'],
 					globalSetup: ['tests/setup/app.ts'],
-					testTimeout: 120_000,
+					testTimeout: 60_000,
 					hookTimeout: 300_000,
 					fileParallelism: false
 				}

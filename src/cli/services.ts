@@ -23,8 +23,9 @@ export async function waitForPort(port: number, timeoutMs = 60_000, child?: Chil
 }
 
 /** maildev on loopback only: SMTP on smtpPort, inbox web UI and REST API on webPort. */
-export async function startMaildev(smtpPort: number, webPort: number): Promise<ChildProcess> {
-	const child = spawn(join(root, 'node_modules/.bin/maildev'), ['--ip', '127.0.0.1', '--web-ip', '127.0.0.1', '-s', String(smtpPort), '-w', String(webPort), '--silent'], {
+export async function startMaildev(smtpPort: number, webPort: number, mailDir = join(root, '.data/mail')): Promise<ChildProcess> {
+	const args = ['--ip', '127.0.0.1', '--web-ip', '127.0.0.1', '-s', String(smtpPort), '-w', String(webPort), '--mail-directory', mailDir, '--silent'];
+	const child = spawn(join(root, 'node_modules/.bin/maildev'), args, {
 		stdio: ['ignore', 'ignore', 'inherit']
 	});
 	await waitForPort(webPort, 30_000, child);

@@ -1,0 +1,146 @@
+/**
+ * The authorization table: every route of the app, for every kind of caller, and the status each must get.
+ * A route added to src/routes must be added here too (the last test fails otherwise).
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readdirSync, statSync } from 'node:fs';
+import { join, relative } from 'node:path';
+import { client, signIn } from '../helpers/session.js';
+import { addMember, closeDb, makeProject, makeTeam, makeUser } from '../helpers/factories.js';
+
+type Caller = 'signedOut' | 'viewer' | 'editor' | 'admin' | 'owner' | 'outsider';
+const callers: Caller[] = ['signedOut', 'viewer', 'editor', 'admin', 'owner', 'outsider'];
+
+interface Ctx {
+	teamId: string;
+	projectId: string;
+	/** a fresh project for cases that delete or rename */
+	freshProject: () => Promise<string>;
+}
+
+interface Case {
+	route: string; // the src/routes pattern this case covers
+	method: 'GET' | 'POST' | 'PATCH' | 'DELETE';
+	path: (c: Ctx) => string | Promise<string>;
+	body?: (c: Ctx) => unknown;
+	form?: (c: Ctx) => Record<string, string>;
+	expect: Record<Caller, number>;
+}
+
+// 303 = sent to sign-in (pages); 401 = API without a session; 404 = not a member (existence hidden).
+const page = (member: number, outsider = 404) => ({ signedOut: 303, viewer: member, editor: member, admin: member, owner: member, outsider });
+
+let n = 0;
+const cases: Case[] = [
+	{ route: '/', method: 'GET', path: () => '/', expect: { signedOut: 303, viewer: 303, editor: 303, admin: 303, owner: 303, outsider: 303 } },
+	{ route: '/signin', method: 'GET', path: () => '/signin', expect: { signedOut: 200, viewer: 303, editor: 303, admin: 303, owner: 303, outsider: 303 } },
+	{ route: '/signin/check-email', method: 'GET', path: () => '/signin/check-email', expect: { signedOut: 200, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
+	{ route: '/signin/problem', method: 'GET', path: () => '/signin/problem?error=Verification', expect: { signedOut: 200, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
+	{ route: '/signout', method: 'GET', path: () => '/signout', expect: { signedOut: 303, viewer: 303, editor: 303, admin: 303, owner: 303, outsider: 303 } },
+	{ route: '/teams/[teamId]/projects', method: 'GET', path: (c) => `/teams/${c.teamId}/projects`, expect: page(200) },
+	{
+		route: '/teams/[teamId]/projects',
+		method: 'POST',
+		path: (c) => `/teams/${c.teamId}/projects?/create`,
+		form: () => ({ name: `form project ${n++}`, description: '' }),
+		// form actions answer 200 with an error payload; SvelteKit maps thrown errors to their status
+		expect: { signedOut: 303, viewer: 403, editor: 200, admin: 200, owner: 200, outsider: 404 }
+	},
+	{ route: '/teams/[teamId]/projects/[projectId]', method: 'GET', path: (c) => `/teams/${c.teamId}/projects/${c.projectId}`, expect: page(200) },
+	{ route: '/api/teams', method: 'GET', path: () => '/api/teams', expect: { signedOut: 401, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
+	{ route: '/api/projects', method: 'GET', path: (c) => `/api/projects?teamId=${c.teamId}`, expect: { signedOut: 401, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 404 } },
+	{
+		route: '/api/projects',
+		method: 'POST',
+		path: () => '/api/projects',
+		body: (c) => ({ teamId: c.teamId, name: `api project ${n++}` }),
+		expect: { signedOut: 401, viewer: 403, editor: 201, admin: 201, owner: 201, outsider: 404 }
+	},
+	{ route: '/api/projects/[id]', method: 'GET', path: (c) => `/api/projects/${c.projectId}`, expect: { signedOut: 401, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 404 } },
+	{
+		route: '/api/projects/[id]',
+		method: 'PATCH',
+		path: async (c) => `/api/projects/${await c.freshProject()}`,
+		body: () => ({ description: 'changed' }),
+		expect: { signedOut: 401, viewer: 403, editor: 200, admin: 200, owner: 200, outsider: 404 }
+	},
+	{
+		route: '/api/projects/[id]',
+		method: 'DELETE',
+		path: async (c) => `/api/projects/${await c.freshProject()}`,
+		expect: { signedOut: 401, viewer: 403, editor: 403, admin: 204, owner: 204, outsider: 404 }
+	}
+];
+
+const cookies = {} as Record<Caller, string | null>;
+let ctx: Ctx;
+
+beforeAll(async () => {
+	const team = await makeTeam();
+	const other = await makeTeam();
+	ctx = { teamId: team.id, projectId: (await makeProject(team.id)).id, freshProject: async () => (await makeProject(team.id)).id };
+	cookies.signedOut = null;
+	for (const role of ['viewer', 'editor', 'admin', 'owner'] as const) {
+		const u = await makeUser(role);
+		await addMember(team.id, u.id, role);
+		cookies[role] = await signIn(u.email!);
+	}
+	const outsider = await makeUser('outsider');
+	await addMember(other.id, outsider.id, 'owner');
+	cookies.outsider = await signIn(outsider.email!);
+});
+
+afterAll(closeDb);
+
+describe('authorization table', () => {
+	for (const c of cases) {
+		for (const who of callers) {
+			it(`${c.method} ${c.route} as ${who} → ${c.expect[who]}`, async () => {
+				const call = client(cookies[who]);
+				const path = await c.path(ctx);
+				const res = c.form
+					? await call(path, { method: 'POST', body: new URLSearchParams(c.form(ctx)), headers: { 'content-type': 'application/x-www-form-urlencoded', 'x-sveltekit-action': 'true', accept: 'application/json' } })
+					: await call(path, { method: c.method, json: c.body?.(ctx) });
+				let status = res.status;
+				// a form action called as use:enhance does reports redirects and failures inside a JSON envelope
+				if (c.form) {
+					const envelope = (await res.json()) as { type: string; status?: number; location?: string };
+					if (envelope.type === 'redirect') status = 303;
+					else if (envelope.type === 'failure') status = envelope.status!;
+					else if (envelope.type === 'success') status = 200;
+				}
+				expect(status).toBe(c.expect[who]);
+			});
+		}
+	}
+
+	it('sends signed-out visitors of app pages to sign-in, coming back afterwards', async () => {
+		const res = await client(null)(`/teams/${ctx.teamId}/projects`);
+		expect(res.status).toBe(303);
+		expect(res.headers.get('location')).toBe(`/signin?redirectTo=${encodeURIComponent(`/teams/${ctx.teamId}/projects`)}`);
+	});
+
+	it('cross-team ids answer 404, never 403, so existence does not leak', async () => {
+		const res = await client(cookies.outsider)(`/api/projects/${ctx.projectId}`, { method: 'DELETE' });
+		expect(res.status).toBe(404);
+		expect((await res.json()).error.code).toBe('not_found');
+	});
+
+	it('covers every route under src/routes', () => {
+		const root = join(process.cwd(), 'src/routes');
+		const found: string[] = [];
+		const walk = (dir: string) => {
+			for (const name of readdirSync(dir)) {
+				const p = join(dir, name);
+				if (statSync(p).isDirectory()) walk(p);
+				else if (/^\+(page|server)\.(svelte|ts)$/.test(name)) {
+					const route = '/' + relative(root, dir).split('/').filter((s) => s && !/^\(.*\)$/.test(s)).join('/');
+					if (!found.includes(route)) found.push(route);
+				}
+			}
+		};
+		walk(root);
+		const covered = new Set(cases.map((c) => c.route));
+		expect(found.filter((r) => !covered.has(r))).toEqual([]);
+	});
+});

@@ -1,0 +1,55 @@
+/**
+ * Global setup for integration and end-to-end tests: a throwaway PostgreSQL cluster
+ * (temporary folder, free port), the fake inbox, a fresh build, and the web server.
+ * Everything is stopped and removed afterwards.
+ */
+import { randomBytes } from 'node:crypto';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { TestProject } from 'vitest/node';
+import { ensureDatabase, freePort, startCluster, stopCluster } from '../../src/lib/server/db/cluster.js';
+import { applyMigrations } from '../../src/lib/server/db/migrate.js';
+import { buildIfStale, serveApp, startMaildev } from '../../src/cli/services.js';
+
+declare module 'vitest' {
+	export interface ProvidedContext {
+		baseUrl: string;
+		inboxUrl: string;
+		databaseUrl: string;
+	}
+}
+
+export default async function setup(project: TestProject) {
+	const dir = mkdtempSync(join(tmpdir(), 'loadline-test-'));
+	const dataDir = join(dir, 'postgres');
+	const cluster = startCluster(dataDir, await freePort());
+	const databaseUrl = await ensureDatabase(cluster, 'loadline_test');
+	await applyMigrations(databaseUrl);
+
+	const smtpPort = await freePort();
+	const inboxPort = await freePort();
+	const maildev = await startMaildev(smtpPort, inboxPort, join(dir, 'mail'));
+
+	buildIfStale();
+	const appPort = await freePort();
+	const app = await serveApp(appPort, {
+		DATABASE_URL: databaseUrl,
+		AUTH_SECRET: randomBytes(32).toString('base64url'),
+		SMTP_URL: `smtp://127.0.0.1:${smtpPort}`
+	});
+
+	project.provide('baseUrl', `http://127.0.0.1:${appPort}`);
+	project.provide('inboxUrl', `http://127.0.0.1:${inboxPort}`);
+	project.provide('databaseUrl', databaseUrl);
+
+	return async () => {
+		app.kill('SIGTERM');
+		maildev.kill('SIGTERM');
+		try {
+			stopCluster(dataDir);
+		} finally {
+			rmSync(dir, { recursive: true, force: true });
+		}
+	};
+}
