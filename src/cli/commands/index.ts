@@ -1,4 +1,11 @@
 /** Registry of `loadline` commands; each lives in its own file beside this one. */
 import type { Command } from '../args.js';
+import { gen } from './gen.js';
+import { convert } from './convert.js';
+import { profile } from './profile.js';
 
-export const commands: Record<string, Command> = {};
+export const commands: Record<string, Command> = {
+	gen,
+	convert,
+	profile
+};
