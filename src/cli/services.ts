@@ -50,8 +50,12 @@ export function buildIfStale(log = console.log): void {
 	const newest = Math.max(...buildInputs.map((p) => newestMtime(join(root, p))));
 	if (built > newest) return;
 	log('Building the app (sources changed since the last build)…');
-	const r = spawnSync(join(root, 'node_modules/.bin/vite'), ['build', '--logLevel', 'error'], { cwd: root, stdio: 'inherit' });
-	if (r.status !== 0) throw new Error(`vite build failed with code ${r.status}`);
+	// The bundler's dependency notes are noise here; show the output only when the build fails.
+	const r = spawnSync(join(root, 'node_modules/.bin/vite'), ['build', '--logLevel', 'error'], { cwd: root, encoding: 'utf8', maxBuffer: 64 << 20 });
+	if (r.status !== 0) {
+		console.error(`${r.stdout}\n${r.stderr}`.split('\n').slice(-80).join('\n'));
+		throw new Error(`vite build failed with code ${r.status}`);
+	}
 }
 
 /** The built SvelteKit server (adapter-node) on 127.0.0.1:port. */

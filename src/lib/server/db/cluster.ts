@@ -70,12 +70,14 @@ export function initCluster(dataDir: string, bin = findPgBin()): void {
 	runPg(bin, 'initdb', ['-D', dataDir, '-U', 'postgres', '--auth=trust', '-E', 'UTF8', '--locale=C.UTF-8']);
 }
 
-function pidAlive(pid: number): boolean {
+/** A live postmaster: the pid exists, is not a zombie, and is a postgres process (pids are reused after a crash). */
+function postmasterAlive(pid: number): boolean {
 	try {
-		process.kill(pid, 0);
-		return true;
-	} catch (e) {
-		return (e as NodeJS.ErrnoException).code === 'EPERM';
+		const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+		const state = stat.slice(stat.lastIndexOf(')') + 2, stat.lastIndexOf(')') + 3);
+		return state !== 'Z' && stat.includes('(postgres)');
+	} catch {
+		return false;
 	}
 }
 
@@ -86,7 +88,7 @@ export function startCluster(dataDir: string, port: number, bin = findPgBin()): 
 	const pidFile = join(dataDir, 'postmaster.pid');
 	if (existsSync(pidFile)) {
 		const pid = Number(readFileSync(pidFile, 'utf8').split('\n')[0]);
-		if (pid && pidAlive(pid)) return cluster(dataDir, port, bin);
+		if (pid && postmasterAlive(pid)) return cluster(dataDir, port, bin);
 		rmSync(pidFile, { force: true });
 	}
 	runPg(bin, 'pg_ctl', [
