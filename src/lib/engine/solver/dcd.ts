@@ -39,6 +39,8 @@ export interface CoordinateSolver {
 	settled: boolean;
 	/** lower the inner tolerance after the gap test failed; false when it cannot go lower */
 	tighten(): boolean;
+	/** the same rows, loaded again (block strategies keep a solver, and its shrinking state, per block) */
+	reload(rows: SparseRows): void;
 }
 
 /** Inner tolerance on the projected-gradient spread to start with (liblinear's -e default) and its floor. */
@@ -158,6 +160,10 @@ export class SvmDualCoordinateDescent implements CoordinateSolver {
 			this.pgMinOld = pgMin >= 0 ? -Infinity : pgMin;
 		}
 		this.activeSize = active;
+	}
+
+	reload(rows: SparseRows): void {
+		this.ws.rows = rows;
 	}
 
 	tighten(): boolean {

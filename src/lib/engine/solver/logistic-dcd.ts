@@ -119,6 +119,10 @@ export class LogisticDualCoordinateDescent implements CoordinateSolver {
 		this.lastGmax = gMax;
 	}
 
+	reload(rows: SparseRows): void {
+		this.ws.rows = rows;
+	}
+
 	tighten(): boolean {
 		if (this.innerEps <= MIN_INNER_EPS && this.lastGmax <= 1e-10) return false;
 		this.innerEps = Math.max(MIN_INNER_EPS, 0.1 * this.innerEps);

@@ -1,0 +1,239 @@
+/**
+ * block and selective strategies: block minimization of the SVM / logistic dual when the data
+ * does not fit in RAM.
+ *
+ *   Split {1..n} into blocks B₁..B_b that each fit the budget (one preparation pass, blocks.ts).
+ *   Outer iteration: for each block Bⱼ in turn, load it and run dual coordinate descent (with
+ *   shrinking kept per block) on α_Bⱼ for innerEpochs × |Bⱼ| coordinate visits, all other αᵢ fixed; w = Σ αᵢ yᵢ xᵢ and every αᵢ stay in RAM.
+ *   (Yu, Hsieh, Chang, Lin, "Large linear classification when data cannot fit in memory", KDD 2010.)
+ *   selective: the subproblem is solved over Bⱼ ∪ K, where the cache K holds the most informative
+ *   examples seen so far (α off its bounds, or a small projected gradient), refilled after each
+ *   block (Chang, Roth, "Selective block minimization for faster convergence of limited memory
+ *   large-scale linear models", KDD 2011).
+ * Stopping: after each outer iteration the gap is estimated from the margin each example had
+ * right after its own last update (no extra pass); when that estimate is ≤ tol a checking pass
+ * over the blocks computes the exact primal, and the run stops only if the exact gap is ≤ tol.
+ * The checking pass counts as a pass. No bias feature.
+ * Counted memory: w (8d), α (8n), C − α (8n, logistic), the margin log (8n), the block(s) in RAM;
+ * selective also the cache, the joined working set and a flag per example.
+ */
+import type { SparseRows, TrainReport } from '../types.js';
+import { readBinaryHeader } from '../data/binary.js';
+import { Throttle } from '../data/throttle.js';
+import { lossTable, relativeGap } from './losses.js';
+import { addMargins, dualFrom, emptySums, lossSumOfMargins, primalFrom } from './objective.js';
+import { OptionError, type ResolvedOptions } from './options.js';
+import { Meter, hitRate, stateBytes } from './meter.js';
+import { loadBlock, prepareBlocks, type BlockSet } from './blocks.js';
+import { createSolver, seededRng } from './solve-rows.js';
+import type { CoordinateSolver } from './dcd.js';
+import { joinRows, rowsBytes, workingSetBytes } from './rows.js';
+import { dot } from './sparse.js';
+
+const EMPTY_ROWS: SparseRows = { n: 0, d: 0, labels: new Int8Array(0), rowPtr: new Float64Array(1), indices: new Uint32Array(0), values: null };
+
+/** smallest block budget worth running: a few thousand short rows */
+const MIN_BLOCK_BYTES = 64 * 1024;
+
+export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promise<TrainReport> {
+	const meter = new Meter();
+	const h = await readBinaryHeader(o.data);
+	const { n, d } = h;
+	const logistic = o.loss === 'logistic';
+	const state = stateBytes(n, d, logistic, true) + (selective ? n : 12 * n);
+	const free = o.memoryBytes - state;
+	// selective: block + cache are joined into one working set, so they get half of what is left
+	const blockBudget = selective ? (free / 2) * (1 - o.cacheFraction) : o.compress ? free / 2 : free;
+	const cacheBudget = selective ? (free / 2) * o.cacheFraction : 0;
+	if (blockBudget < MIN_BLOCK_BYTES) {
+		throw new OptionError(`memoryBytes: ${o.memoryBytes} bytes leave ${Math.max(0, Math.floor(blockBudget))} for a block after w, α and the margin log (${state} bytes); need at least ${MIN_BLOCK_BYTES}`);
+	}
+	const throttle = new Throttle(o.diskMBps);
+	const rng = seededRng(o.seed);
+	const w = new Float64Array(d);
+	const alpha = new Float64Array(n);
+	const comp = logistic ? new Float64Array(n).fill(o.C) : null;
+	const margins = new Float64Array(n);
+	meter.hold(state);
+
+	const set: BlockSet = await meter.read(() => prepareBlocks(o.data, d, blockBudget, { compress: o.compress, throttle, workDir: o.workDir, diskMBps: o.diskMBps }));
+	meter.passes = 1;
+	try {
+		let visits = 0;
+		let outer = 0;
+		let primal = NaN;
+		let dual = NaN;
+		let gap = Infinity;
+		let accuracy = 0;
+		let converged = false;
+		// selective cache: rows, their global ids, and a flag per example
+		let cache: SparseRows | null = null;
+		let cacheIds = new Uint32Array(0);
+		const inCache = selective ? new Uint8Array(n) : null;
+		const { upper, diag } = lossTable(o.loss, o.C);
+		// block: one solver per block keeps its shrinking state (12 bytes per example, counted in `state`)
+		const blockSolvers: (CoordinateSolver | undefined)[] = [];
+		let checkWait = 1;
+		let nextCheck = 0;
+
+		const exactCheck = async () => {
+			const sums = emptySums();
+			for (const b of set.blocks) {
+				const rows = await meter.read(() => loadBlock(set, b, d, throttle));
+				meter.hold(state + b.memoryBytes + (set.compress ? b.diskBytes : 0) + (cache ? rowsBytes(cache) : 0));
+				meter.compute(() => {
+					addMargins(sums, rows, w, o.loss);
+					// the exact margins also refresh the log the estimate uses
+					refreshMargins(rows, b.start, w, margins);
+				});
+			}
+			meter.passes++;
+			primal = primalFrom(w, o.C, sums.lossSum);
+			dual = dualFrom(o.loss, o.C, w, alpha, comp);
+			gap = relativeGap(primal, dual);
+			accuracy = sums.correct / n;
+			meter.trace.push({ seconds: meter.seconds(), gap });
+		};
+
+		while (visits / n < o.maxEpochs) {
+			outer++;
+			for (let bi = 0; bi < set.blocks.length; bi++) {
+				const b = set.blocks[bi];
+				const block = await meter.read(() => loadBlock(set, b, d, throttle));
+				meter.exampleReads += block.n;
+				if (!selective) {
+					meter.hold(state + b.memoryBytes + (set.compress ? b.diskBytes : 0));
+					visits += meter.compute(() => {
+						let solver = blockSolvers[bi];
+						if (solver === undefined) {
+							const ws = {
+								rows: block,
+								alpha: alpha.subarray(b.start, b.start + b.n),
+								comp: comp ? comp.subarray(b.start, b.start + b.n) : null,
+								margins: margins.subarray(b.start, b.start + b.n)
+							};
+							solver = blockSolvers[bi] = createSolver(ws, w, o.loss, o.C, rng);
+						} else solver.reload(block);
+						const before = solver.updates;
+						innerSolve(solver, o.innerEpochs * block.n);
+						// the block leaves RAM; its solver keeps only per-example numbers
+						solver.reload(EMPTY_ROWS);
+						return solver.updates - before;
+					});
+					continue;
+				}
+				// selective: working set = cache ∪ (block rows not already cached)
+				const cached: SparseRows = cache ?? EMPTY_ROWS;
+				const flags = inCache as Uint8Array;
+				const ids = new Uint32Array(cached.n + block.n);
+				let m = 0;
+				for (let i = 0; i < cached.n; i++) ids[m++] = cacheIds[i];
+				for (let i = 0; i < block.n; i++) if (flags[b.start + i] === 0) ids[m++] = b.start + i;
+				const wsRows = joinRows([cached, block], d, (part, i) => part === 0 || flags[b.start + i] === 0);
+				meter.hold(state + rowsBytes(cached) + b.memoryBytes + (set.compress ? b.diskBytes : 0) + rowsBytes(wsRows) + 4 * ids.length);
+				const result = meter.compute(() => {
+					const la = new Float64Array(m);
+					const lc = comp ? new Float64Array(m) : null;
+					const lm = new Float64Array(m);
+					for (let i = 0; i < m; i++) {
+						la[i] = alpha[ids[i]];
+						if (lc && comp) lc[i] = comp[ids[i]];
+					}
+					const solver = createSolver({ rows: wsRows, alpha: la, comp: lc, margins: lm }, w, o.loss, o.C, rng);
+					innerSolve(solver, o.innerEpochs * block.n);
+					for (let i = 0; i < m; i++) {
+						alpha[ids[i]] = la[i];
+						if (lc && comp) comp[ids[i]] = lc[i];
+						margins[ids[i]] = lm[i];
+					}
+					// informative: free α scores 0, a bound α scores its distance from violating the KKT conditions
+					const score = new Float64Array(m);
+					for (let i = 0; i < m; i++) {
+						const a = la[i];
+						const G = lm[i] - 1 + diag * a;
+						score[i] = logistic ? Math.abs(lm[i]) : a > 0 && a < upper ? 0 : a === 0 ? Math.max(G, 0) : Math.max(-G, 0);
+					}
+					const order = Array.from({ length: m }, (_, i) => i).sort((x, y) => score[x] - score[y]);
+					const keep = new Uint8Array(m);
+					let kept = 0;
+					let keptNnz = 0;
+					const real = wsRows.values !== null;
+					for (const i of order) {
+						const len = wsRows.rowPtr[i + 1] - wsRows.rowPtr[i];
+						if (workingSetBytes(kept + 1, keptNnz + len, real) + 4 * (kept + 1) > cacheBudget) break;
+						keep[i] = 1;
+						kept++;
+						keptNnz += len;
+					}
+					for (let i = 0; i < m; i++) flags[ids[i]] = keep[i];
+					const nextIds = new Uint32Array(kept);
+					let k = 0;
+					for (let i = 0; i < m; i++) if (keep[i]) nextIds[k++] = ids[i];
+					return { updates: solver.updates, next: joinRows([wsRows], d, (_, i) => keep[i] === 1), nextIds };
+				});
+				meter.hold(state + rowsBytes(wsRows) + 4 * ids.length + rowsBytes(result.next) + 4 * result.nextIds.length);
+				visits += result.updates;
+				cache = result.next;
+				cacheIds = result.nextIds;
+			}
+			meter.passes++;
+			// estimate from the margin log; the exact check only when the estimate says done
+			const estimate = relativeGap(primalFrom(w, o.C, lossSumOfMargins(o.loss, margins)), dualFrom(o.loss, o.C, w, alpha, comp));
+			meter.trace.push({ seconds: meter.seconds(), gap: estimate });
+			o.onProgress?.({ seconds: meter.seconds(), gap: estimate, epochs: visits / n });
+			if (estimate <= o.tol && outer >= nextCheck) {
+				await exactCheck();
+				if (gap <= o.tol) {
+					converged = true;
+					break;
+				}
+				// the estimate runs optimistic: back off the checks and re-examine every shrunk example
+				checkWait = Math.min(8, checkWait * 2);
+				nextCheck = outer + checkWait;
+				for (const s of blockSolvers) s?.tighten();
+			}
+		}
+		if (!converged) await exactCheck();
+		return {
+			strategy: selective ? 'selective' : 'block',
+			loss: o.loss,
+			C: o.C,
+			primal,
+			dual,
+			gap,
+			epochs: visits / n,
+			passes: meter.passes,
+			updates: visits,
+			cacheHitRate: hitRate(meter.exampleReads, visits),
+			readSeconds: meter.readMs / 1000,
+			computeSeconds: meter.computeMs / 1000,
+			wallSeconds: meter.seconds(),
+			peakMemoryBytes: meter.peakBytes,
+			accuracy,
+			outerIterations: outer,
+			trace: meter.trace,
+			...(o.keepWeights ? { w: Float64Array.from(w) } : {})
+		};
+	} finally {
+		set.dispose();
+	}
+}
+
+/**
+ * Coordinate visits worth `budget` (innerEpochs × the rows read), so each read is amortized over
+ * the same work whether or not shrinking makes epochs short; a settled block tightens and goes on.
+ */
+function innerSolve(solver: CoordinateSolver, budget: number): void {
+	const start = solver.updates;
+	while (solver.updates - start < budget) {
+		const before = solver.updates;
+		solver.epoch();
+		if (solver.updates === before) break;
+		if (solver.settled && !solver.tighten()) break;
+	}
+}
+
+/** Exact yᵢ wᵀxᵢ of a block's rows into the margin log. */
+function refreshMargins(rows: SparseRows, start: number, w: Float64Array, margins: Float64Array): void {
+	for (let i = 0; i < rows.n; i++) margins[start + i] = rows.labels[i] * dot(w, rows.indices, rows.values, rows.rowPtr[i], rows.rowPtr[i + 1]);
+}
