@@ -1,6 +1,6 @@
 /** Every table of Loadline. Migrations in drizzle/ are generated from this file by drizzle-kit. */
 import { sql } from 'drizzle-orm';
-import { integer, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid, index, boolean } from 'drizzle-orm/pg-core';
+import { bigint, boolean, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 
 // Auth.js adapter tables (names and columns as @auth/drizzle-adapter expects).
 export const users = pgTable('user', {
@@ -97,7 +97,171 @@ export const projects = pgTable(
 	(t) => [uniqueIndex('project_team_name_unique').on(t.teamId, sql`lower(${t.name})`)]
 );
 
+// Planning workspace -------------------------------------------------------------
+
+/** The team's own machine catalog (presets live in code). `profile` follows the machine schema. */
+export const machines = pgTable(
+	'machine',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		teamId: uuid('team_id')
+			.notNull()
+			.references(() => teams.id, { onDelete: 'cascade' }),
+		name: text('name').notNull(),
+		profile: jsonb('profile').notNull(),
+		/** 'manual' or 'probe' (uploaded from `loadline probe-machine`) */
+		source: text('source').notNull().default('manual'),
+		retiredAt: timestamp('retired_at', { withTimezone: true }),
+		createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [uniqueIndex('machine_team_name_unique').on(t.teamId, sql`lower(${t.name})`)]
+);
+
+/** A measured calibration record, reused by every plan of the same shape until it is too old. */
+export const calibrations = pgTable(
+	'calibration',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		teamId: uuid('team_id')
+			.notNull()
+			.references(() => teams.id, { onDelete: 'cascade' }),
+		/** hash of what the measurements depend on (k, p, value kind, d footprint, loss, C, tol, machine ratios) */
+		shapeKey: text('shape_key').notNull(),
+		/** 'synthetic' or 'sample' (ran on an uploaded sample of real data) */
+		source: text('source').notNull().default('synthetic'),
+		uploadId: uuid('upload_id'),
+		record: jsonb('record').notNull(),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [index('calibration_shape_idx').on(t.teamId, t.shapeKey, t.createdAt)]
+);
+
+export const plans = pgTable(
+	'plan',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		projectId: uuid('project_id')
+			.notNull()
+			.references(() => projects.id, { onDelete: 'cascade' }),
+		teamId: uuid('team_id')
+			.notNull()
+			.references(() => teams.id, { onDelete: 'cascade' }),
+		name: text('name').notNull(),
+		/** the plan schema's JSON (PLAN.json) */
+		input: jsonb('input').notNull(),
+		/** the estimate snapshot at the last save */
+		estimate: jsonb('estimate'),
+		calibrationId: uuid('calibration_id').references(() => calibrations.id, { onDelete: 'set null' }),
+		// Columns the plan table sorts and filters on, copied from the snapshot.
+		recommended: text('recommended'),
+		p10Seconds: doublePrecision('p10_seconds'),
+		p50Seconds: doublePrecision('p50_seconds'),
+		p90Seconds: doublePrecision('p90_seconds'),
+		cost: doublePrecision('cost'),
+		deadlineVerdict: text('deadline_verdict'),
+		createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+		updatedBy: text('updated_by').references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [uniqueIndex('plan_project_name_unique').on(t.projectId, sql`lower(${t.name})`), index('plan_team_idx').on(t.teamId)]
+);
+
+/** Every save of a plan, so history shows how its answer moved. */
+export const planRevisions = pgTable(
+	'plan_revision',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		planId: uuid('plan_id')
+			.notNull()
+			.references(() => plans.id, { onDelete: 'cascade' }),
+		input: jsonb('input').notNull(),
+		estimate: jsonb('estimate'),
+		calibrationId: uuid('calibration_id').references(() => calibrations.id, { onDelete: 'set null' }),
+		p50Seconds: doublePrecision('p50_seconds'),
+		createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [index('plan_revision_plan_idx').on(t.planId, t.createdAt)]
+);
+
+export const jobStatusEnum = pgEnum('job_status', ['queued', 'running', 'done', 'failed', 'cancelled']);
+
+/** A calibration job as users see it; the queue itself is pg-boss's own schema. */
+export const calibrationJobs = pgTable(
+	'calibration_job',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		teamId: uuid('team_id')
+			.notNull()
+			.references(() => teams.id, { onDelete: 'cascade' }),
+		planId: uuid('plan_id').references(() => plans.id, { onDelete: 'set null' }),
+		uploadId: uuid('upload_id'),
+		shapeKey: text('shape_key').notNull(),
+		/** the plan input the calibration is shaped after */
+		input: jsonb('input').notNull(),
+		status: jobStatusEnum('status').notNull().default('queued'),
+		phase: text('phase').notNull().default('waiting for a worker'),
+		fraction: real('fraction').notNull().default(0),
+		error: text('error'),
+		attempts: integer('attempts').notNull().default(0),
+		queueJobId: text('queue_job_id'),
+		calibrationId: uuid('calibration_id').references(() => calibrations.id, { onDelete: 'set null' }),
+		createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [index('calibration_job_team_idx').on(t.teamId, t.createdAt), index('calibration_job_plan_idx').on(t.planId)]
+);
+
+export const uploadStatusEnum = pgEnum('upload_status', ['stored', 'parsing', 'ready', 'rejected']);
+
+/** A sample of a real dataset, stored on disk and parsed by a worker. */
+export const uploads = pgTable(
+	'upload',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		teamId: uuid('team_id')
+			.notNull()
+			.references(() => teams.id, { onDelete: 'cascade' }),
+		fileName: text('file_name').notNull(),
+		/** 'svmlight' or 'csv' */
+		kind: text('kind').notNull(),
+		labelColumn: text('label_column'),
+		gzip: boolean('gzip').notNull().default(false),
+		bytes: bigint('bytes', { mode: 'number' }).notNull(),
+		storedPath: text('stored_path').notNull(),
+		status: uploadStatusEnum('status').notNull().default('stored'),
+		profile: jsonb('profile'),
+		badLines: jsonb('bad_lines'),
+		error: text('error'),
+		createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+	},
+	(t) => [index('upload_team_idx').on(t.teamId, t.createdAt)]
+);
+
+/** A named, shareable side-by-side of plans of one team. */
+export const comparisons = pgTable('comparison', {
+	id: uuid('id').primaryKey().defaultRandom(),
+	teamId: uuid('team_id')
+		.notNull()
+		.references(() => teams.id, { onDelete: 'cascade' }),
+	name: text('name').notNull(),
+	planIds: uuid('plan_ids').array().notNull(),
+	createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+	createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow()
+});
+
 export type Role = (typeof roleEnum.enumValues)[number];
 export type Team = typeof teams.$inferSelect;
 export type Project = typeof projects.$inferSelect;
 export type User = typeof users.$inferSelect;
+export type Machine = typeof machines.$inferSelect;
+export type PlanRow = typeof plans.$inferSelect;
+export type Calibration = typeof calibrations.$inferSelect;
+export type CalibrationJob = typeof calibrationJobs.$inferSelect;
+export type Upload = typeof uploads.$inferSelect;
