@@ -8,7 +8,8 @@
  *   features are scattered over the index range; the indices of a row are distinct and ascending;
  * - values: binary (1) or real (whole thousandths in (0, 1], so text rows round-trip to f32 exactly);
  * - labels: sign(w·x − t) of a hidden sparse weight vector w with N(0, 1) weights on a few popular
- *   features (chosen so a row holds about 10 of them on average, or fewer when rows are shorter),
+ *   features (in at most half of the rows each, chosen so a row holds about 10 of them on
+ *   average, or k/2 when rows are shorter),
  *   then each label flipped with probability `noise`. The threshold t is the score quantile of a
  *   separate pre-sample, set so the positive fraction after noise is `positive` in expectation.
  */
@@ -82,6 +83,8 @@ export function resolveGenerateOptions(opts: Partial<GenerateOptions>): Required
 
 /** Target mean count of informative features per row. */
 const INFORMATIVE_PER_ROW = 10;
+/** smallest share of rows an informative feature appears in */
+const MIN_INFORMATIVE_SHARE = 0.01;
 /** rows of the pre-sample that sets the label threshold */
 const PRESAMPLE_ROWS = 20_000;
 /** draws of distinct popular features before filling a row uniformly */
@@ -149,24 +152,34 @@ class RowSource {
 		return (Math.pow(r + 1, this.e) - Math.pow(r, this.e)) / this.A;
 	}
 
-	/** A random half of the smallest top-R ranks that a row holds about 2·target of. */
+	/**
+	 * A random half of the most popular ranks that a row holds about 2·target of, skipping ranks
+	 * in more than half of all rows: near-constant features would carry no signal and would give
+	 * many rows the same score (ties at the threshold make labels random).
+	 */
 	private informativeRanks(structure: Random): number[] {
 		const target = Math.min(INFORMATIVE_PER_ROW, this.k / 2);
+		let first = 1;
+		while (first < this.d && this.k * this.rankMass(first) > 0.5) first++;
 		let expected = 0;
-		let R = 0;
-		while (R < this.d && expected < 2 * target) {
-			R++;
-			expected += Math.min(1, this.k * this.rankMass(R));
+		let last = first - 1;
+		while (last < this.d && expected < 2 * target) {
+			const q = Math.min(1, this.k * this.rankMass(last + 1));
+			// rarer features would leave too few examples per weight (unless nothing is more popular)
+			if (q < MIN_INFORMATIVE_SHARE && last >= first) break;
+			last++;
+			expected += q;
 		}
+		const R = last - first + 1;
 		const m = Math.max(1, Math.round(R / 2));
-		// partial Fisher–Yates over ranks 1..R without materialising all of them when R is large
+		// partial Fisher–Yates over ranks first..last without materialising all of them when R is large
 		const picked = new Map<number, number>();
 		const out: number[] = [];
 		for (let i = 0; i < m; i++) {
 			const j = i + structure.int(R - i);
 			const vj = picked.get(j) ?? j;
 			picked.set(j, picked.get(i) ?? i);
-			out.push(vj + 1);
+			out.push(first + vj);
 		}
 		return out;
 	}

@@ -4,9 +4,11 @@
  * Why: a calibration reads files that sit in the page cache, so reads run at memory
  * speed; to emulate a slower target disk the reader must be held to that disk's rate.
  *
- * Model: the emulated disk transfers `bytes` in bytes / rate seconds and never banks idle
- * time; transfers overlap with the reader's own work (like readahead), so a reader that
- * decodes slower than the disk is never slowed further.
+ * Model: the emulated disk delivers one read of `bytes` in bytes / rate seconds and reads
+ * one request ahead: the transfer for a read starts when the previous transfer ended, but not
+ * before the previous read was requested (readahead is triggered by consumption). A reader
+ * that works slower than the disk is therefore never slowed; one that works faster runs at
+ * the disk's rate. Idle time is never banked beyond that one read.
  */
 
 export interface ThrottleClock {
@@ -28,6 +30,8 @@ export class Throttle {
 	private readonly bytesPerMs: number;
 	/** time (ms) at which the emulated disk finishes the transfers taken so far */
 	private busyUntil = -Infinity;
+	/** time (ms) of the previous request, which triggered the current readahead */
+	private lastRequest = Infinity;
 
 	constructor(
 		mbPerSecond?: number,
@@ -47,7 +51,8 @@ export class Throttle {
 	async take(bytes: number): Promise<void> {
 		if (this.bytesPerMs === 0 || bytes <= 0) return;
 		const now = this.clock.now();
-		this.busyUntil = Math.max(this.busyUntil, now) + bytes / this.bytesPerMs;
+		this.busyUntil = Math.max(this.busyUntil, Math.min(this.lastRequest, now)) + bytes / this.bytesPerMs;
+		this.lastRequest = now;
 		const wait = this.busyUntil - now;
 		if (wait >= MIN_SLEEP_MS) await this.clock.sleep(wait);
 	}
