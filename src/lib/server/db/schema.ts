@@ -265,3 +265,82 @@ export type PlanRow = typeof plans.$inferSelect;
 export type Calibration = typeof calibrations.$inferSelect;
 export type CalibrationJob = typeof calibrationJobs.$inferSelect;
 export type Upload = typeof uploads.$inferSelect;
+
+// Teams that pay -----------------------------------------------------------------
+
+/** An e-mailed invitation to join a team; only a SHA-256 hash of the link token is kept. */
+export const invitations = pgTable(
+	'invitation',
+	{
+		id: uuid('id').primaryKey().defaultRandom(),
+		teamId: uuid('team_id')
+			.notNull()
+			.references(() => teams.id, { onDelete: 'cascade' }),
+		/** lower-cased address the link was sent to */
+		email: text('email').notNull(),
+		role: roleEnum('role').notNull(),
+		tokenHash: text('token_hash').notNull().unique(),
+		invitedBy: text('invited_by').references(() => users.id, { onDelete: 'set null' }),
+		createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+		sentAt: timestamp('sent_at', { withTimezone: true }).notNull().defaultNow(),
+		expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+		acceptedAt: timestamp('accepted_at', { withTimezone: true }),
+		acceptedBy: text('accepted_by').references(() => users.id, { onDelete: 'set null' }),
+		revokedAt: timestamp('revoked_at', { withTimezone: true })
+	},
+	// One open invitation per address and team; accepted and revoked ones stay as history.
+	(t) => [index('invitation_team_idx').on(t.teamId), uniqueIndex('invitation_open_unique').on(t.teamId, t.email).where(sql`accepted_at is null and revoked_at is null`)]
+);
+
+/** Per-user mail choices; a missing row means the defaults. */
+export const userPreferences = pgTable('user_preference', {
+	userId: text('user_id')
+		.primaryKey()
+		.references(() => users.id, { onDelete: 'cascade' }),
+	calibrationMail: boolean('calibration_mail').notNull().default(true),
+	updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+});
+
+/** A team's Stripe customer and subscription as last seen; no row means the Free tier. */
+export const teamBilling = pgTable('team_billing', {
+	teamId: uuid('team_id')
+		.primaryKey()
+		.references(() => teams.id, { onDelete: 'cascade' }),
+	stripeCustomerId: text('stripe_customer_id').unique(),
+	stripeSubscriptionId: text('stripe_subscription_id').unique(),
+	subscriptionItemId: text('subscription_item_id'),
+	/** Stripe's subscription status ('active', 'past_due', 'canceled', …) or 'none' */
+	status: text('status').notNull().default('none'),
+	seats: integer('seats').notNull().default(0),
+	seatPriceCents: integer('seat_price_cents'),
+	currency: text('currency'),
+	currentPeriodEnd: timestamp('current_period_end', { withTimezone: true }),
+	cancelAtPeriodEnd: boolean('cancel_at_period_end').notNull().default(false),
+	/** `created` of the newest webhook event applied, so older events arriving late change nothing */
+	lastEventAt: timestamp('last_event_at', { withTimezone: true }),
+	updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow()
+});
+
+/** Every Stripe webhook event processed, keyed by its id so a repeat does nothing. */
+export const stripeEvents = pgTable('stripe_event', {
+	id: text('id').primaryKey(),
+	type: text('type').notNull(),
+	eventCreatedAt: timestamp('event_created_at', { withTimezone: true }).notNull(),
+	/** 'applied', 'stale' (older than the state kept), 'ignored' (type not used) or 'no_team' */
+	outcome: text('outcome').notNull(),
+	receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow()
+});
+
+/** Fixed-window counters shared by every web server (sign-in e-mails per address and per client). */
+export const rateLimits = pgTable(
+	'rate_limit',
+	{
+		key: text('key').notNull(),
+		windowStart: timestamp('window_start', { withTimezone: true }).notNull(),
+		hits: integer('hits').notNull().default(0)
+	},
+	(t) => [primaryKey({ columns: [t.key, t.windowStart] })]
+);
+
+export type Invitation = typeof invitations.$inferSelect;
+export type TeamBilling = typeof teamBilling.$inferSelect;
