@@ -19,6 +19,8 @@ import { axpy, dot, squaredNorm } from './sparse.js';
 import type { CoordinateSolver, Rng, WorkingSet } from './dcd.js';
 
 const MAX_INNER = 100;
+/** scratch for newtonStep's results, so the hot loop allocates nothing */
+const step = new Float64Array(3);
 const ETA = 0.1;
 const MIN_INNER_EPS = 1e-12;
 
@@ -54,7 +56,7 @@ export class LogisticDualCoordinateDescent implements CoordinateSolver {
 		const { alpha, margins } = this.ws;
 		const { w, xsq, index, rng, C, comp } = this;
 		const innerEps = this.innerEps;
-		const alphaStart = Math.min(1e-3 * C, 1e-8);
+		const alphaStart = logisticStart(C);
 		for (let s = 0; s < n; s++) {
 			const j = s + Math.floor(rng() * (n - s));
 			const t = index[s];
@@ -77,39 +79,13 @@ export class LogisticDualCoordinateDescent implements CoordinateSolver {
 			}
 			const b = yi * dot(w, indices, values, start, end);
 			const ai = alpha[i];
-			const ci = comp[i];
-			// solve in the variable whose optimum lies in (0, C/2]: g′ of αᵢ at C/2 decides
-			const sign = 0.5 * a * (ci - ai) + b < 0 ? -1 : 1;
-			const z0 = sign > 0 ? ai : ci;
-			let z = z0;
-			if (C - z < 0.5 * C) z = 0.1 * z;
-			let gp = a * (z - z0) + sign * b + Math.log(z / (C - z));
-			const g = Math.abs(gp);
+			const g = newtonStep(a, b, ai, comp[i], C, innerEps, step);
 			if (g > gMax) gMax = g;
-			let inner = 0;
-			while (inner <= MAX_INNER) {
-				if (Math.abs(gp) < innerEps) break;
-				const gpp = a + C / (C - z) / z;
-				const tz = z - gp / gpp;
-				if (tz <= 0) z *= ETA;
-				else if (tz >= C) z = 0.5 * (z + C);
-				else z = tz;
-				gp = a * (z - z0) + sign * b + Math.log(z / (C - z));
-				inner++;
-			}
-			newtonSteps += inner;
-			let da = 0;
-			if (inner > 0 || z !== z0) {
-				if (sign > 0) {
-					alpha[i] = z;
-					comp[i] = C - z;
-				} else {
-					comp[i] = z;
-					alpha[i] = C - z;
-				}
-				da = alpha[i] - ai;
-				if (da !== 0) axpy(da * yi, indices, values, start, end, w);
-			}
+			newtonSteps += step[2];
+			alpha[i] = step[0];
+			comp[i] = step[1];
+			const da = step[0] - ai;
+			if (da !== 0) axpy(da * yi, indices, values, start, end, w);
 			if (margins !== null) margins[i] = b + da * a;
 		}
 		this.updates += n;
@@ -129,4 +105,46 @@ export class LogisticDualCoordinateDescent implements CoordinateSolver {
 		this.settled = false;
 		return true;
 	}
+}
+
+/**
+ * One subproblem (header): given a = ‖xᵢ‖², b = yᵢwᵀxᵢ, the current αᵢ and C − αᵢ, write the new
+ * αᵢ, C − αᵢ and the Newton step count into out[0..2]; returns |g′| at the start (the violation).
+ */
+export function newtonStep(a: number, b: number, ai: number, ci: number, C: number, innerEps: number, out: Float64Array): number {
+	// solve in the variable whose optimum lies in (0, C/2]: g′ of αᵢ at C/2 decides
+	const sign = 0.5 * a * (ci - ai) + b < 0 ? -1 : 1;
+	const z0 = sign > 0 ? ai : ci;
+	let z = z0;
+	if (C - z < 0.5 * C) z = 0.1 * z;
+	let gp = a * (z - z0) + sign * b + Math.log(z / (C - z));
+	const violation = Math.abs(gp);
+	let inner = 0;
+	while (inner <= MAX_INNER) {
+		if (Math.abs(gp) < innerEps) break;
+		const gpp = a + C / (C - z) / z;
+		const tz = z - gp / gpp;
+		if (tz <= 0) z *= ETA;
+		else if (tz >= C) z = 0.5 * (z + C);
+		else z = tz;
+		gp = a * (z - z0) + sign * b + Math.log(z / (C - z));
+		inner++;
+	}
+	if (z === z0) {
+		out[0] = ai;
+		out[1] = ci;
+	} else if (sign > 0) {
+		out[0] = z;
+		out[1] = C - z;
+	} else {
+		out[0] = C - z;
+		out[1] = z;
+	}
+	out[2] = inner;
+	return violation;
+}
+
+/** αᵢ an example takes on its first visit: inside the open box, near the α = 0 it started from. */
+export function logisticStart(C: number): number {
+	return Math.min(1e-3 * C, 1e-8);
 }

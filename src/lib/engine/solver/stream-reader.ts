@@ -1,0 +1,172 @@
+/**
+ * Reader thread of the stream strategy: reads the binary row file strictly sequentially in large
+ * chunks (through the disk throttle), decodes each row not already cached into a free cache
+ * segment, publishes full segments, and wraps to the start of the file for the next pass.
+ * Runs in a worker thread (started through stream-reader-boot.mjs); talks to the trainer only
+ * through the shared cache, and posts its read log and any error when it ends.
+ */
+import { parentPort, workerData } from 'node:worker_threads';
+import { readBinaryChunkViews } from '../data/binary.js';
+import {
+	C_ERROR,
+	C_EVICTED,
+	C_FREED,
+	C_PASSES,
+	C_PAUSE,
+	C_PAUSED,
+	C_PUBLISHED,
+	C_READER_WAITING,
+	C_STOP,
+	C_TRAINER_HUNGRY,
+	FLAG_NEGATIVE,
+	ROW_HEADER_WORDS,
+	SEG_FIELDS,
+	SEG_FILLING,
+	SEG_FREE,
+	SEG_READY,
+	lock,
+	unlock,
+	viewCache,
+	type SharedBuffers
+} from './stream-cache.js';
+
+export interface ReaderData {
+	path: string;
+	buffers: SharedBuffers;
+	chunkBytes: number;
+	diskMBps: number | undefined;
+	/** keep a log of every read (pass, offset, bytes) for tests */
+	logReads: boolean;
+}
+
+export interface ReaderResult {
+	error?: string;
+	reads: number[];
+}
+
+async function run(data: ReaderData): Promise<ReaderResult> {
+	const cache = viewCache(data.buffers);
+	const { control, table, idx, xsq, val, inCache, stats } = cache;
+	const { segmentWords } = cache.layout;
+	const reads: number[] = [];
+	let pass = 0;
+	let seg = -1;
+	let pos = 0;
+	let segEnd = 0;
+	let published = 0;
+	const stopped = () => Atomics.load(control, C_STOP) === 1;
+
+	const publish = () => {
+		if (seg < 0) return;
+		lock(control);
+		table[seg * SEG_FIELDS + 2] = pos;
+		table[seg * SEG_FIELDS] = SEG_READY;
+		unlock(control);
+		Atomics.add(control, C_PUBLISHED, 1);
+		Atomics.notify(control, C_PUBLISHED);
+		seg = -1;
+		published++;
+	};
+	/** claim a free segment, waiting for the trainer to hand one back; false when told to stop */
+	const acquire = (): boolean => {
+		for (;;) {
+			if (stopped()) return false;
+			lock(control);
+			const S = cache.layout.segments;
+			for (let s = 0; s < S; s++) {
+				if (table[s * SEG_FIELDS] === SEG_FREE) {
+					table[s * SEG_FIELDS] = SEG_FILLING;
+					unlock(control);
+					seg = s;
+					pos = table[s * SEG_FIELDS + 1];
+					segEnd = (s + 1) * segmentWords;
+					Atomics.store(control, C_READER_WAITING, 0);
+					return true;
+				}
+			}
+			const freed = Atomics.load(control, C_FREED);
+			Atomics.store(control, C_READER_WAITING, 1);
+			unlock(control);
+			Atomics.wait(control, C_FREED, freed, 20);
+		}
+	};
+	const waitWhilePaused = () => {
+		while (Atomics.load(control, C_PAUSE) === 1 && !stopped()) {
+			Atomics.store(control, C_PAUSED, 1);
+			Atomics.wait(control, C_PAUSE, 1, 20);
+		}
+		Atomics.store(control, C_PAUSED, 0);
+	};
+
+	for (;;) {
+		const insertedBefore = stats[2];
+		const evictedBefore = Atomics.load(control, C_EVICTED);
+		let t = performance.now();
+		for await (const view of readBinaryChunkViews(data.path, {
+			chunkBytes: data.chunkBytes,
+			throttleMBps: data.diskMBps,
+			onRead: (offset, bytes) => {
+				stats[0] += bytes;
+				if (data.logReads) reads.push(pass, offset, bytes);
+			}
+		})) {
+			stats[1] += performance.now() - t;
+			let p = 0;
+			for (let r = 0; r < view.rows; r++) {
+				const len = view.lengths[r];
+				const gid = view.firstRow + r;
+				if (Atomics.load(inCache, gid) === 0) {
+					const words = ROW_HEADER_WORDS + len;
+					if (seg < 0 || pos + words > segEnd) {
+						publish();
+						if (!acquire()) return { reads };
+						if (pos + words > segEnd) throw new Error(`row ${gid} (${len} nonzeros) does not fit one cache segment of ${segmentWords} words; raise memoryBytes or lower segments`);
+					}
+					idx[pos] = gid;
+					idx[pos + 1] = len;
+					idx[pos + 2] = view.labels[r] < 0 ? FLAG_NEGATIVE : 0;
+					idx[pos + 3] = 0;
+					const s = pos + ROW_HEADER_WORDS;
+					idx.set(view.indices.subarray(p, p + len), s);
+					let sq = len;
+					if (val && view.values) {
+						const v = view.values.subarray(p, p + len);
+						val.set(v, s);
+						sq = 0;
+						for (let j = 0; j < len; j++) sq += v[j] * v[j];
+					}
+					xsq[pos + 4] = sq;
+					Atomics.store(inCache, gid, 1);
+					pos += words;
+					stats[2]++;
+				}
+				p += len;
+			}
+			// hand over what is filled so the trainer never waits on a half-full segment for long
+			if (seg >= 0 && (published === 0 || Atomics.load(control, C_TRAINER_HUNGRY) === 1)) publish();
+			if (stopped()) return { reads };
+			waitWhilePaused();
+			t = performance.now();
+		}
+		publish();
+		pass++;
+		Atomics.add(control, C_PASSES, 1);
+		Atomics.notify(control, C_PUBLISHED);
+		// a pass that found every row cached: read again only once the trainer has evicted some
+		if (stats[2] === insertedBefore) {
+			while (!stopped() && Atomics.load(control, C_EVICTED) === evictedBefore) Atomics.wait(control, C_EVICTED, evictedBefore, 20);
+		}
+		if (stopped()) return { reads };
+	}
+}
+
+const data = workerData as ReaderData;
+run(data).then(
+	(result) => parentPort?.postMessage(result),
+	(err: unknown) => {
+		const control = new Int32Array(data.buffers.control);
+		Atomics.store(control, C_ERROR, 1);
+		Atomics.notify(control, C_PUBLISHED);
+		parentPort?.postMessage({ error: err instanceof Error ? err.message : String(err), reads: [] } satisfies ReaderResult);
+	}
+);
