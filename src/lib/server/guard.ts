@@ -8,6 +8,7 @@ import { error, redirect, type RequestEvent } from '@sveltejs/kit';
 import type { Role } from './db/schema.js';
 import * as teams from './teams.js';
 import * as projects from './projects.js';
+import * as plans from './plans.js';
 
 export type Need = 'read' | 'edit' | 'manage' | 'own';
 
@@ -62,4 +63,14 @@ export async function project(event: RequestEvent, projectId: string, need: Need
 	if (!p || !m) error(404, { code: 'not_found', message: 'No such project.' });
 	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
 	return { user: me, team: m, role: m.role, project: p };
+}
+
+/** A plan and the user's membership in its team, checked against what they need to do. */
+export async function plan(event: RequestEvent, planId: string, need: Need) {
+	const me = await user(event);
+	const p = UUID.test(planId) ? await plans.get(planId) : null;
+	const m = p ? await teams.membership(p.teamId, me.id) : null;
+	if (!p || !m) error(404, { code: 'not_found', message: 'No such plan.' });
+	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
+	return { user: me, team: m, role: m.role, plan: p };
 }

@@ -63,3 +63,13 @@ export function fieldErrors(err: z.ZodError): Fields {
 	}
 	return out;
 }
+
+/** Parse URL query parameters against a schema; a 400 names each bad parameter. */
+export function query<S extends z.ZodType>(params: URLSearchParams, schema: S): z.infer<S> {
+	const parsed = schema.safeParse(Object.fromEntries(params));
+	if (!parsed.success) {
+		const fields = fieldErrors(parsed.error);
+		throw new ApiError(400, 'invalid', `Invalid ${Object.keys(fields).join(', ')}: ${Object.values(fields)[0]}`, fields);
+	}
+	return parsed.data;
+}

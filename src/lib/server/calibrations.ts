@@ -1,0 +1,104 @@
+/**
+ * Calibration records: the team's own (from calibration jobs) and the built-in one shipped with
+ * the app, so a plan has an estimate before its first calibration. Records are reused by every
+ * plan of the same shape until they are older than MAX_AGE_DAYS.
+ */
+import { createHash } from 'node:crypto';
+import { and, desc, eq, gt } from 'drizzle-orm';
+import { db } from './db/index.js';
+import { calibrations } from './db/schema.js';
+import { calibrationRecordSchema, type CalibrationRecord } from '$lib/engine/calibrate/record.js';
+import type { Plan } from '$lib/schemas/plan.js';
+import builtIn from './baseline-calibration.json';
+
+export const MAX_AGE_DAYS = 7;
+export const BUILT_IN_ID = 'built-in';
+
+/** What a calibration's measurements depend on; the machine is scaled by the model, so it is left out. */
+export function shapeKey(plan: Plan): string {
+	const { dataset: d, training: t } = plan;
+	const shape = {
+		k: Math.round(d.nnzPerRow),
+		p: Math.round(d.positiveFraction * 100) / 100,
+		values: d.valueKind,
+		weights: Math.round(Math.log2(d.features)),
+		format: d.format,
+		compressed: d.compressed,
+		loss: t.loss,
+		C: t.C,
+		tol: t.tol
+	};
+	return createHash('sha256').update(JSON.stringify(shape)).digest('hex').slice(0, 32);
+}
+
+export interface CalibrationMeta {
+	id: string;
+	source: 'built-in' | 'synthetic' | 'sample';
+	createdAt: string;
+	machine: string;
+	/** the calibration was made for a plan of this plan's shape */
+	sameShape: boolean;
+}
+
+export interface ResolvedCalibration {
+	record: CalibrationRecord;
+	meta: CalibrationMeta;
+}
+
+const builtInRecord = calibrationRecordSchema.parse(builtIn);
+
+export function builtInCalibration(plan?: Plan): ResolvedCalibration {
+	return {
+		record: builtInRecord,
+		meta: {
+			id: BUILT_IN_ID,
+			source: 'built-in',
+			createdAt: builtInRecord.machine.date,
+			machine: builtInRecord.machine.cpuModel,
+			sameShape: plan ? shapeKey(plan) === shapeKey(builtInRecord.plan) : false
+		}
+	};
+}
+
+function resolved(row: typeof calibrations.$inferSelect, plan: Plan | undefined): ResolvedCalibration {
+	const record = calibrationRecordSchema.parse(row.record);
+	return {
+		record,
+		meta: {
+			id: row.id,
+			source: row.source === 'sample' ? 'sample' : 'synthetic',
+			createdAt: row.createdAt.toISOString(),
+			machine: record.machine.cpuModel,
+			sameShape: plan ? row.shapeKey === shapeKey(plan) : true
+		}
+	};
+}
+
+/** A team's calibration by id, or null when it is not the team's. */
+export async function get(teamId: string, id: string, plan?: Plan): Promise<ResolvedCalibration | null> {
+	if (id === BUILT_IN_ID) return builtInCalibration(plan);
+	if (!/^[0-9a-f-]{36}$/i.test(id)) return null;
+	const [row] = await db.select().from(calibrations).where(and(eq(calibrations.id, id), eq(calibrations.teamId, teamId)));
+	return row ? resolved(row, plan) : null;
+}
+
+/** The newest fresh calibration of the plan's shape in the team, or null. */
+export async function freshFor(teamId: string, plan: Plan): Promise<ResolvedCalibration | null> {
+	const since = new Date(Date.now() - MAX_AGE_DAYS * 86_400_000);
+	const [row] = await db
+		.select()
+		.from(calibrations)
+		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey(plan)), gt(calibrations.createdAt, since)))
+		.orderBy(desc(calibrations.createdAt))
+		.limit(1);
+	return row ? resolved(row, plan) : null;
+}
+
+/** The calibration an estimate should rest on: the one asked for, else a fresh one of this shape, else the built-in one. */
+export async function forPlan(teamId: string, plan: Plan, calibrationId?: string | null): Promise<ResolvedCalibration> {
+	if (calibrationId) {
+		const asked = await get(teamId, calibrationId, plan);
+		if (asked) return asked;
+	}
+	return (await freshFor(teamId, plan)) ?? builtInCalibration(plan);
+}
