@@ -114,6 +114,8 @@ export class SvmlightParser {
 
 	/** Parse buf[pos, end): whole lines, buf[end - 1] must be '\n'. */
 	feed(buf: Uint8Array, pos: number, end: number): void {
+		// every scanning loop stops at '\n', so a final newline keeps them inside the buffer
+		if (end > pos && buf[end - 1] !== 10) throw new RangeError('feed needs whole lines: the last byte must be a newline');
 		const stats = this.stats;
 		let indices = this.indices;
 		let values = this.values;
@@ -170,10 +172,12 @@ export class SvmlightParser {
 				}
 				const tokStart = pos;
 				let idx = 0;
-				while (c >= 48 && c <= 57) {
-					idx = idx * 10 + (c - 48);
-					c = buf[++pos];
+				let dg = c - 48;
+				while (dg >>> 0 < 10) {
+					idx = idx * 10 + dg;
+					dg = buf[++pos] - 48;
 				}
+				c = dg + 48;
 				if (c !== 58 || pos === tokStart) {
 					if (mayQid && c === 113 && buf[pos + 1] === 105 && buf[pos + 2] === 100 && buf[pos + 3] === 58) {
 						pos += 4;
@@ -209,20 +213,23 @@ export class SvmlightParser {
 					let mant = 0;
 					let digits = 0;
 					let scale = 0;
-					while (c >= 48 && c <= 57) {
-						mant = mant * 10 + (c - 48);
+					let dg = c - 48;
+					while (dg >>> 0 < 10) {
+						mant = mant * 10 + dg;
 						digits++;
-						c = buf[++pos];
+						dg = buf[++pos] - 48;
 					}
-					if (c === 46) {
-						c = buf[++pos];
-						while (c >= 48 && c <= 57) {
-							mant = mant * 10 + (c - 48);
-							digits++;
-							scale++;
-							c = buf[++pos];
+					if (dg === -2) {
+						const dot = ++pos;
+						dg = buf[pos] - 48;
+						while (dg >>> 0 < 10) {
+							mant = mant * 10 + dg;
+							dg = buf[++pos] - 48;
 						}
+						scale = pos - dot;
+						digits += scale;
 					}
+					c = dg + 48;
 					let exp = 0;
 					let expOk = true;
 					if (c === 101 || c === 69) {
