@@ -3,9 +3,11 @@ import type { Command } from '../args.js';
 import { gen } from './gen.js';
 import { convert } from './convert.js';
 import { profile } from './profile.js';
+import { train } from './train.js';
 
 export const commands: Record<string, Command> = {
 	gen,
 	convert,
-	profile
+	profile,
+	train
 };
