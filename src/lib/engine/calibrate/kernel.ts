@@ -1,0 +1,57 @@
+/**
+ * Per-update cost of the sparse coordinate step (dot, then axpy) on rows shaped like a
+ * dataset: k nonzeros per row, indices uniform over d features, so the weight vector
+ * sits where a real run puts it in the memory hierarchy.
+ */
+import { Random } from '../data/random.js';
+import { axpy, dot } from '../solver/sparse.js';
+import type { KernelPoint } from './record.js';
+
+/** rows in the measured set: enough that rows themselves do not stay in cache */
+const KERNEL_NNZ = 1 << 20;
+
+/** Measure ns per coordinate update at (k, d) for about `seconds` of work. */
+export function measureKernel(nnzPerRow: number, features: number, opts: { real?: boolean; seconds?: number; seed?: number } = {}): KernelPoint {
+	const k = Math.max(1, Math.min(features, Math.round(nnzPerRow)));
+	const rows = Math.max(64, Math.floor(KERNEL_NNZ / k));
+	const rng = new Random(opts.seed ?? 1);
+	const indices = new Uint32Array(rows * k);
+	for (let j = 0; j < indices.length; j++) indices[j] = rng.int(features);
+	const values = opts.real === false ? null : new Float32Array(rows * k).map(() => rng.next());
+	const order = new Uint32Array(rows);
+	for (let i = 0; i < rows; i++) order[i] = rng.int(rows);
+	const w = new Float64Array(features);
+	const budgetMs = (opts.seconds ?? 0.05) * 1000;
+	let updates = 0;
+	let sink = 0;
+	// warm up once, then time whole sweeps until the budget is spent
+	const sweep = () => {
+		for (let t = 0; t < rows; t++) {
+			const i = order[t];
+			const g = dot(w, indices, values, i * k, i * k + k) - 1;
+			sink += g;
+			axpy(g > 0 ? -1e-3 : 1e-3, indices, values, i * k, i * k + k, w);
+		}
+	};
+	sweep();
+	const t0 = performance.now();
+	let elapsed = 0;
+	do {
+		sweep();
+		updates += rows;
+		elapsed = performance.now() - t0;
+	} while (elapsed < budgetMs);
+	if (!Number.isFinite(sink)) throw new Error('kernel diverged');
+	return { nnzPerRow: k, features, nsPerUpdate: (elapsed * 1e6) / updates };
+}
+
+/** The fixed kernel that defines relative core speed: k = 32, d = 65536 (w of 512 KiB), real values. */
+export const REFERENCE_KERNEL = { nnzPerRow: 32, features: 65536 } as const;
+/** ns per update of the reference kernel on a core of speed 1 (this project's development machine, measured). */
+export const REFERENCE_NS_PER_UPDATE = 400;
+
+/** Relative core speed of the machine running this: reference cost over measured cost. */
+export function measureCoreSpeed(seconds = 0.2): { coreSpeed: number; nsPerUpdate: number } {
+	const p = measureKernel(REFERENCE_KERNEL.nnzPerRow, REFERENCE_KERNEL.features, { seconds });
+	return { coreSpeed: REFERENCE_NS_PER_UPDATE / p.nsPerUpdate, nsPerUpdate: p.nsPerUpdate };
+}

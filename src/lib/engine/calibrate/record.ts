@@ -1,0 +1,75 @@
+/**
+ * Calibration record: which machine a calibration ran on and what it measured.
+ * The web app stores it as JSON; the model (model/fit.ts) is fitted on it.
+ */
+import { z } from 'zod';
+import { planSchema } from '../../schemas/plan.js';
+
+export const STRATEGIES = ['memory', 'block', 'selective', 'stream'] as const;
+
+/** One engine run on synthetic data, with the emulation it ran under. */
+export const calibrationRunSchema = z.object({
+	strategy: z.enum(STRATEGIES),
+	rows: z.number().int().positive(),
+	seed: z.number().int(),
+	/** cache / block budget given to the engine; null = unlimited */
+	memoryBytes: z.number().positive().nullable(),
+	/** reader throttle given to the engine; null = unthrottled */
+	diskMBps: z.number().positive().nullable(),
+	/** rows in RAM over all rows the budget allows (1 = everything fits) */
+	cacheFraction: z.number().positive(),
+	/** blocks the budget implies for block and selective (1 otherwise) */
+	blocks: z.number().int().positive(),
+	/** trainer updates per row the reader delivers in the same time (trainer-to-reader speed ratio) */
+	updatesPerRead: z.number().positive(),
+	bytesOnDisk: z.number().positive(),
+	/** what the engine reported */
+	epochs: z.number(),
+	passes: z.number(),
+	updates: z.number(),
+	cacheHitRate: z.number(),
+	readSeconds: z.number(),
+	computeSeconds: z.number(),
+	wallSeconds: z.number(),
+	peakMemoryBytes: z.number(),
+	outerIterations: z.number(),
+	gap: z.number()
+});
+
+/** Per-update cost of the sparse kernel at one (k, d). */
+export const kernelPointSchema = z.object({
+	nnzPerRow: z.number().positive(),
+	features: z.number().int().positive(),
+	nsPerUpdate: z.number().positive()
+});
+
+export const calibrationRecordSchema = z.object({
+	kind: z.literal('loadline-calibration'),
+	version: z.literal(1),
+	machine: z.object({
+		cpuModel: z.string(),
+		cores: z.number().int().positive(),
+		ramBytes: z.number().positive(),
+		node: z.string(),
+		platform: z.string(),
+		date: z.string(),
+		/** relative core speed of this machine (reference core = 1, see model/scale.ts) */
+		coreSpeed: z.number().positive()
+	}),
+	/** the plan this calibration was made for */
+	plan: planSchema,
+	/** feature dimension the synthetic data used (the plan's, capped to what this machine can hold) */
+	features: z.number().int().positive(),
+	seeds: z.array(z.number().int()).min(1),
+	durationSeconds: z.number().nonnegative(),
+	kernel: z.array(kernelPointSchema).min(1),
+	/** unthrottled throughput in MB/s of uncompressed bytes: binary decode, text parse, gunzip */
+	decode: z.object({ binaryMBps: z.number().positive(), textMBps: z.number().positive(), gunzipMBps: z.number().positive() }),
+	runs: z.array(calibrationRunSchema).min(1),
+	/** what could not be emulated, in words */
+	notes: z.array(z.string())
+});
+
+export type CalibrationRun = z.infer<typeof calibrationRunSchema>;
+export type KernelPoint = z.infer<typeof kernelPointSchema>;
+export type CalibrationRecord = z.infer<typeof calibrationRecordSchema>;

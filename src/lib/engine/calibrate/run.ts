@@ -1,0 +1,218 @@
+/**
+ * Calibration: run the real engine on small synthetic data shaped like the plan's dataset
+ * (same k, p, value kind, loss, C, tol; the plan's feature dimension up to what this machine
+ * can hold) under the memory budget and reader throttle that reproduce the target machine's
+ * cache fraction and trainer-to-reader speed ratio, and record what the model needs.
+ *
+ * Per strategy: a pilot run sizes the rest to the time budget; then runs at a larger row
+ * count, a second seed (the spread), a second cache fraction (the RAM slope) and, for stream,
+ * a second reader speed (the disk slope).
+ */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { cpus, platform, tmpdir, totalmem } from 'node:os';
+import { join } from 'node:path';
+import type { Plan } from '../../schemas/plan.js';
+import type { StrategyName } from '../types.js';
+import { generateToFile, GENERATE_DEFAULTS } from '../data/generate.js';
+import { train } from '../solver/train.js';
+import { budgetShape, binaryBytesPerRow, updatesPerRead } from '../model/ratios.js';
+import { engineStateBytes, rowsInRamBytes } from '../model/sizes.js';
+import { fitKernelLines, kernelNs } from '../model/fit.js';
+import { measureCoreSpeed, measureKernel } from './kernel.js';
+import { measureDecode } from './measure.js';
+import { STRATEGIES, type CalibrationRecord, type CalibrationRun, type KernelPoint } from './record.js';
+
+export interface CalibrationProgress {
+	phase: 'machine' | 'kernel' | 'decode' | StrategyName | 'done';
+	/** 0..1 of the whole calibration (time-based estimate) */
+	fraction: number;
+	message: string;
+}
+
+export interface CalibrateOptions {
+	/** seeds of the synthetic data and solver; two give the spread. Default [1, 2] */
+	seeds?: number[];
+	/** time budget for the whole calibration in seconds; default 75 (the run stays under 90) */
+	budgetSeconds?: number;
+	/** strategies to calibrate; default all four */
+	strategies?: StrategyName[];
+	/** largest feature dimension the synthetic data may use; default 2^24 (128 MiB of weights) */
+	maxFeatures?: number;
+	/** largest rows of one calibration run; default 200 000 */
+	maxRows?: number;
+	/** folder for the synthetic files; default a fresh folder under the OS temp dir, removed at the end */
+	workDir?: string;
+	onProgress?: (p: CalibrationProgress) => void;
+}
+
+/** share of the budget per strategy (block minimization converges slowest) */
+const WEIGHTS: Record<StrategyName, number> = { memory: 0.12, block: 0.33, selective: 0.25, stream: 0.3 };
+/** smallest cache fraction calibrated directly (at most 16 blocks); smaller ones are extrapolated */
+const MIN_FRACTION = 1 / 16;
+/** budget bytes each strategy needs beyond its state to run at all (engine minimums with headroom) */
+const MIN_BUDGET: Record<StrategyName, number> = { memory: 0, block: 96 * 1024, selective: 384 * 1024, stream: 256 * 1024 };
+const MIN_ROWS = 1000;
+
+export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promise<CalibrationRecord> {
+	const t0 = performance.now();
+	const elapsed = () => (performance.now() - t0) / 1000;
+	const budgetSeconds = opts.budgetSeconds ?? 75;
+	const seeds = opts.seeds ?? [1, 2];
+	const strategies = opts.strategies ?? [...STRATEGIES];
+	const maxRows = opts.maxRows ?? 200_000;
+	const ds = plan.dataset;
+	const tr = plan.training;
+	const features = Math.min(ds.features, opts.maxFeatures ?? 2 ** 24);
+	const k = Math.min(ds.nnzPerRow, features);
+	const notes: string[] = [];
+	if (features < ds.features) notes.push(`synthetic data used ${features} features instead of ${ds.features} (weights capped at ${(features * 8) / 2 ** 20} MiB)`);
+	const progress = (phase: CalibrationProgress['phase'], message: string) =>
+		opts.onProgress?.({ phase, fraction: phase === 'done' ? 1 : Math.min(0.99, elapsed() / budgetSeconds), message });
+	const owned = opts.workDir === undefined;
+	const dir = opts.workDir ?? mkdtempSync(join(tmpdir(), 'loadline-calibration-'));
+	try {
+		progress('machine', 'measuring relative core speed');
+		const core = measureCoreSpeed(0.15);
+
+		progress('kernel', 'measuring cost per coordinate update');
+		const kernel: KernelPoint[] = [];
+		const ks = [...new Set([Math.max(1, Math.round(k / 2)), Math.round(k), Math.min(features, Math.round(k * 2))])];
+		const dims = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
+		for (const d of dims) for (const kk of ks) kernel.push(measureKernel(kk, d, { real: ds.valueKind === 'real', seconds: 0.04 }));
+		const kernelFit = fitKernelLines(kernel);
+		const nsCal = kernelNs(kernelFit, k, features);
+
+		const files = new Map<string, string>();
+		const dataFile = async (rows: number, seed: number, format: 'bin' | 'svm' = 'bin') => {
+			const key = `${rows}-${seed}-${format}`;
+			let path = files.get(key);
+			if (!path) {
+				path = join(dir, `rows-${key}.${format}`);
+				await generateToFile({ rows, features, nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
+				files.set(key, path);
+			}
+			return path;
+		};
+
+		progress('decode', 'measuring decode and parse throughput');
+		const decodeRows = Math.max(MIN_ROWS, Math.min(50_000, Math.round(4e6 / (k * 6 + 8))));
+		const decode = await measureDecode(await dataFile(decodeRows, seeds[0]), await dataFile(decodeRows, seeds[0], 'svm'));
+
+		// the target machine's ratios
+		const scale = core.coreSpeed / plan.machine.coreSpeed;
+		const targetReadBps = Math.min(plan.machine.diskMBps * 1e6, (decode.binaryMBps * 1e6) / scale);
+		// reader rate here that keeps the trainer-to-reader ratio: the target rate × (core speed here / there)
+		const calReadBps = targetReadBps * scale;
+		const decodeBps = decode.binaryMBps * 1e6;
+		if (calReadBps >= decodeBps * 0.9) notes.push(`the target reads faster relative to its cores than this machine can decode; runs were unthrottled (updates per read extrapolated)`);
+		const throttle = (bps: number) => (bps >= decodeBps * 0.9 ? undefined : bps / 1e6);
+
+		const runs: CalibrationRun[] = [];
+		const fixed = elapsed();
+		const weightSum = strategies.reduce((a, s) => a + WEIGHTS[s], 0);
+		for (const s of strategies) {
+			const share = ((budgetSeconds - fixed) * WEIGHTS[s]) / weightSum;
+			const started = elapsed();
+			const targetFraction = budgetShape(plan, s, ds.rows).cacheFraction;
+			const f1 = s === 'memory' ? 1 : Math.min(1, Math.max(MIN_FRACTION, targetFraction));
+			const f2 = s === 'memory' ? 1 : f1 < 1 ? Math.min(1, f1 * 2) : 0.5;
+			const bytesPerRowRam = rowsInRamBytes(1000, k, ds.valueKind) / 1000;
+			// rows so that the smallest budget holds the engine's minimum
+			const needRows = Math.ceil(MIN_BUDGET[s] / (Math.min(f1, f2) * bytesPerRowRam));
+			const pilotRows = Math.min(ds.rows, maxRows, Math.max(MIN_ROWS, needRows));
+			const runOne = async (rows: number, seed: number, fraction: number, readBps: number): Promise<CalibrationRun> => {
+				const data = await dataFile(rows, seed);
+				const logistic = tr.loss === 'logistic';
+				const state = engineStateBytes(s, rows, features, logistic);
+				const rowsRam = rowsInRamBytes(rows, k, ds.valueKind);
+				const memoryBytes = s === 'memory' ? undefined : Math.ceil(state + Math.max(fraction * rowsRam, MIN_BUDGET[s]));
+				const diskMBps = throttle(readBps);
+				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps });
+				const bytesOnDisk = binaryBytesPerRow(rows, k, ds.valueKind) * rows;
+				const rate = Math.min(diskMBps ? diskMBps * 1e6 : Infinity, decodeBps);
+				if (rep.gap > tr.tol) notes.push(`${s} at ${rows} rows stopped at the epoch limit with gap ${rep.gap.toPrecision(3)} above tol`);
+				const run: CalibrationRun = {
+					strategy: s,
+					rows,
+					seed,
+					memoryBytes: memoryBytes ?? null,
+					diskMBps: diskMBps ?? null,
+					cacheFraction: s === 'memory' ? 1 : Math.min(1, (memoryBytes! - state) / rowsRam),
+					blocks: s === 'block' || s === 'selective' ? Math.max(1, Math.ceil(1 / Math.min(1, (memoryBytes! - state) / rowsRam))) : 1,
+					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsCal * 1e-9),
+					bytesOnDisk,
+					epochs: rep.epochs,
+					passes: rep.passes,
+					updates: rep.updates,
+					cacheHitRate: rep.cacheHitRate,
+					readSeconds: rep.readSeconds,
+					computeSeconds: rep.computeSeconds,
+					wallSeconds: rep.wallSeconds,
+					peakMemoryBytes: rep.peakMemoryBytes,
+					outerIterations: rep.outerIterations,
+					gap: rep.gap
+				};
+				runs.push(run);
+				progress(s, `${s}: ${rows} rows, cache fraction ${run.cacheFraction.toFixed(3)}, ${rep.passes} passes, ${rep.wallSeconds.toFixed(2)} s`);
+				return run;
+			};
+			// a ladder of doubling row counts at the target's ratios while the next rung fits the share,
+			// keeping room for the extra runs (second seed, second cache fraction, second reader speed)
+			const extras = s === 'memory' ? 1 : s === 'stream' ? 3 : 2;
+			const ladder: CalibrationRun[] = [];
+			let rows = pilotRows;
+			let growth = 2.5;
+			try {
+				while (true) {
+					ladder.push(await runOne(rows, seeds[0], f1, calReadBps));
+					const last = ladder[ladder.length - 1].wallSeconds;
+					if (ladder.length >= 2) growth = Math.max(2, last / Math.max(1e-3, ladder[ladder.length - 2].wallSeconds));
+					const next = Math.min(ds.rows, maxRows, rows * 2);
+					const spent = elapsed() - started;
+					if (next <= rows || spent + last * growth * (1 + extras / growth) > share) break;
+					rows = next;
+				}
+			} catch (err) {
+				notes.push(`${s}: not calibrated at ${rows} rows (${err instanceof Error ? err.message : String(err)})`);
+				if (ladder.length === 0) continue;
+			}
+			// extras one rung below the top (cheaper), or at the top when the ladder has one rung
+			const at = ladder.length >= 2 ? ladder[ladder.length - 2] : ladder[0];
+			const seed2 = seeds[1] ?? seeds[0] + 1;
+			const fits = () => elapsed() - started + at.wallSeconds * 1.5 <= share;
+			if (fits()) await runOne(at.rows, seed2, f1, calReadBps);
+			if (s !== 'memory' && fits()) await runOne(at.rows, seeds[0], f2, calReadBps);
+			if (s === 'stream' && fits()) {
+				// a second trainer-to-reader ratio: a 4× faster reader when the throttle allows, else half speed
+				const faster = calReadBps * 4 < decodeBps * 0.9;
+				await runOne(at.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2);
+			}
+		}
+		const cpu = cpus();
+		const record: CalibrationRecord = {
+			kind: 'loadline-calibration',
+			version: 1,
+			machine: {
+				cpuModel: cpu[0]?.model?.trim() ?? 'unknown',
+				cores: cpu.length,
+				ramBytes: totalmem(),
+				node: process.version,
+				platform: `${platform()} ${process.arch}`,
+				date: new Date().toISOString(),
+				coreSpeed: core.coreSpeed
+			},
+			plan,
+			features,
+			seeds,
+			durationSeconds: elapsed(),
+			kernel,
+			decode,
+			runs,
+			notes
+		};
+		progress('done', `calibrated in ${elapsed().toFixed(1)} s`);
+		return record;
+	} finally {
+		if (owned) rmSync(dir, { recursive: true, force: true });
+	}
+}

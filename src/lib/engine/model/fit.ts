@@ -1,0 +1,179 @@
+/**
+ * Fit the capacity model on a calibration record. Per strategy, log-linear curves in
+ * x = [ln ln rows, ln cacheFraction, ln updatesPerRead] for passes, updates per row and miss rate
+ * (1 − cacheHitRate), plus the ratios that carry measured time to other machines: compute
+ * time per kernel-predicted update, read time per modelled read, overlap and fixed overhead.
+ * Slope bounds encode what must hold physically so predictions stay monotone.
+ */
+import type { CalibrationRecord, CalibrationRun, KernelPoint } from '../calibrate/record.js';
+import type { StrategyName } from '../types.js';
+import { fitLinear, evalLinear, FREE, type LinearFit, type SlopeBounds } from './least-squares.js';
+
+/** ns per update = a + b·k at one feature dimension. */
+export interface KernelLine {
+	lnD: number;
+	a: number;
+	b: number;
+}
+
+export interface StrategyFit {
+	strategy: StrategyName;
+	runs: number;
+	passes: LinearFit;
+	epochs: LinearFit;
+	updatesPerRow: LinearFit;
+	missRate: LinearFit;
+	/** measured compute seconds over kernel-predicted seconds (median over runs) */
+	costRatio: number;
+	/** read rate when decoding is the limit (unthrottled runs), bytes/s on the calibration machine */
+	decodeBps: number;
+	/** measured read seconds over passes × bytes ÷ throttle in throttled runs (≥ 1: preparation writes, request overhead) */
+	throttleRatio: number;
+	/** share of min(read, compute) hidden by overlap */
+	overlap: number;
+	overheadSeconds: number;
+	/** relative spread (sd of ln wall) between repeated seeds */
+	seedSpread: number;
+	/** largest rows calibrated */
+	rowsMax: number;
+}
+
+export interface FittedModel {
+	record: CalibrationRecord;
+	kernel: KernelLine[];
+	strategies: Partial<Record<StrategyName, StrategyFit>>;
+}
+
+/** Bounds on [ln rows, ln cacheFraction, ln updatesPerRead] per quantity and strategy. */
+const NONNEG: SlopeBounds = [0, Infinity];
+const NONPOS: SlopeBounds = [-Infinity, 0];
+const NONE: SlopeBounds = [0, 0];
+function boundsFor(strategy: StrategyName): Record<'passes' | 'updates' | 'miss' | 'epochs', SlopeBounds[]> {
+	// memory: one load, then RAM only; neither the cache fraction nor the reader speed enters
+	if (strategy === 'memory') return { passes: [NONNEG, NONE, NONE], updates: [NONNEG, NONE, NONE], miss: [FREE, NONE, NONE], epochs: [NONNEG, NONE, NONE] };
+	// block: more rows → more blocks; total updates ∝ n^(1 + b − c) must not fall, so c ≤ 1 + b with b ≥ 0
+	// block and selective read, then solve, one block at a time: the reader speed does not enter convergence
+	if (strategy === 'block') return { passes: [NONNEG, NONPOS, NONE], updates: [NONNEG, [-Infinity, 1], NONE], miss: [FREE, FREE, NONE], epochs: [NONNEG, FREE, NONE] };
+	// selective and stream: more RAM (larger fraction) never needs more passes or updates
+	// stream: a faster disk (fewer updates per read r) must not cost time: passes ∝ r^γ with γ ∈ [−1, 0], updates rise with r
+	const stream = strategy === 'stream';
+	return { passes: [NONNEG, NONPOS, stream ? [-1, 0] : NONE], updates: [NONNEG, NONPOS, stream ? NONNEG : NONE], miss: [FREE, FREE, stream ? FREE : NONE], epochs: [NONNEG, FREE, stream ? FREE : NONE] };
+}
+
+/** Epochs to a tolerance grow with log n, so rows enter as ln ln n (a power of log n). */
+export const lnLnRows = (rows: number) => Math.log(Math.log(Math.max(3, rows)));
+
+export const features = (run: Pick<CalibrationRun, 'rows' | 'cacheFraction' | 'updatesPerRead'>) => [
+	lnLnRows(run.rows),
+	Math.log(Math.min(1, run.cacheFraction)),
+	Math.log(run.updatesPerRead)
+];
+
+function median(xs: number[]): number {
+	if (xs.length === 0) return NaN;
+	const s = [...xs].sort((a, b) => a - b);
+	const m = s.length >> 1;
+	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/** ns per update = a + b·k, one line per measured feature dimension. */
+export function fitKernelLines(points: KernelPoint[]): KernelLine[] {
+	const byD = new Map<number, KernelPoint[]>();
+	for (const p of points) byD.set(p.features, [...(byD.get(p.features) ?? []), p]);
+	const lines: KernelLine[] = [];
+	for (const [d, ps] of byD) {
+		const f = fitLinear(
+			ps.map((p) => [p.nnzPerRow]),
+			ps.map((p) => p.nsPerUpdate),
+			[NONNEG]
+		);
+		lines.push({ lnD: Math.log(d), a: Math.max(0, f.coef[0]), b: f.coef[1] });
+	}
+	return lines.sort((x, y) => x.lnD - y.lnD);
+}
+
+/** Kernel ns per update at (k, d), interpolated in ln d and held flat outside the measured range. */
+export function kernelNs(kernel: KernelLine[], k: number, d: number): number {
+	const lnD = Math.log(d);
+	let lo = kernel[0];
+	let hi = kernel[kernel.length - 1];
+	for (const l of kernel) {
+		if (l.lnD <= lnD) lo = l;
+		if (l.lnD >= lnD && hi.lnD >= l.lnD) hi = l;
+	}
+	if (lnD <= kernel[0].lnD) hi = lo = kernel[0];
+	if (lnD >= kernel[kernel.length - 1].lnD) hi = lo = kernel[kernel.length - 1];
+	const t = hi.lnD > lo.lnD ? (lnD - lo.lnD) / (hi.lnD - lo.lnD) : 0;
+	const at = (l: KernelLine) => l.a + l.b * k;
+	return Math.max(1e-3, at(lo) + t * (at(hi) - at(lo)));
+}
+
+function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: StrategyName): StrategyFit | undefined {
+	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0);
+	if (runs.length === 0) return undefined;
+	const b = boundsFor(strategy);
+	const xs = runs.map(features);
+	const k = rec.plan.dataset.nnzPerRow;
+	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
+	const computeModel = runs.map((r) => r.updates * tKernel);
+	const costRatio = median(runs.map((r, i) => r.computeSeconds / computeModel[i]));
+	const implied = (r: CalibrationRun) => (r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds);
+	const free = runs.filter((r) => r.diskMBps === null);
+	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
+	const throttled = runs.filter((r) => r.diskMBps !== null && r.diskMBps * 1e6 < decodeBps);
+	const throttleRatio = throttled.length > 0 ? median(throttled.map((r) => (r.readSeconds * r.diskMBps! * 1e6) / (r.passes * r.bytesOnDisk))) : 1;
+	// wall − read − compute = overhead − overlap × min(read, compute)
+	const lap = fitLinear(
+		runs.map((r) => [-Math.min(r.readSeconds, r.computeSeconds)]),
+		runs.map((r) => r.wallSeconds - r.readSeconds - r.computeSeconds),
+		[[0, 1]]
+	);
+	// spread between seeds at the same setting, pooled over settings
+	const groups = new Map<string, number[]>();
+	for (const r of runs) {
+		const key = `${r.rows}|${r.cacheFraction.toPrecision(4)}|${r.updatesPerRead.toPrecision(4)}`;
+		groups.set(key, [...(groups.get(key) ?? []), Math.log(r.wallSeconds)]);
+	}
+	let ss = 0;
+	let dof = 0;
+	for (const g of groups.values()) {
+		if (g.length < 2) continue;
+		const m = g.reduce((a, x) => a + x, 0) / g.length;
+		ss += g.reduce((a, x) => a + (x - m) ** 2, 0);
+		dof += g.length - 1;
+	}
+	return {
+		strategy,
+		runs: runs.length,
+		passes: fitLinear(xs, runs.map((r) => Math.log(Math.max(1, r.passes))), b.passes),
+		epochs: fitLinear(xs, runs.map((r) => Math.log(Math.max(1e-3, r.epochs))), b.epochs),
+		updatesPerRow: fitLinear(xs, runs.map((r) => Math.log(r.updates / r.rows)), b.updates),
+		missRate: fitLinear(xs, runs.map((r) => Math.log(Math.min(1, Math.max(1e-6, 1 - r.cacheHitRate)))), b.miss),
+		costRatio: Number.isFinite(costRatio) && costRatio > 0 ? costRatio : 1,
+		decodeBps: Number.isFinite(decodeBps) && decodeBps > 0 ? decodeBps : rec.decode.binaryMBps * 1e6,
+		throttleRatio: Number.isFinite(throttleRatio) ? Math.min(3, Math.max(1, throttleRatio)) : 1,
+		overlap: lap.coef[1],
+		overheadSeconds: Math.max(0, lap.coef[0]),
+		seedSpread: dof > 0 ? Math.sqrt(ss / dof) : 0.1,
+		rowsMax: Math.max(...runs.map((r) => r.rows))
+	};
+}
+
+const cache = new WeakMap<CalibrationRecord, FittedModel>();
+
+/** Fit (once per record object; later calls return the cached fit). */
+export function fitModel(rec: CalibrationRecord): FittedModel {
+	const hit = cache.get(rec);
+	if (hit) return hit;
+	const kernel = fitKernelLines(rec.kernel);
+	const strategies: FittedModel['strategies'] = {};
+	for (const s of ['memory', 'block', 'selective', 'stream'] as const) {
+		const f = fitStrategy(rec, kernel, s);
+		if (f) strategies[s] = f;
+	}
+	const model = { record: rec, kernel, strategies };
+	cache.set(rec, model);
+	return model;
+}
+
+export { evalLinear };
