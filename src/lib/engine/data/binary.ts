@@ -504,7 +504,7 @@ export async function* readBinaryChunks(
 	}
 }
 
-/** The whole file in RAM (memory strategy). */
+/** The whole file in RAM (memory strategy): large sequential reads, each chunk copied into place. */
 export async function loadBinary(path: string, opts: Omit<ReadBinaryOptions, 'startRow'> = {}): Promise<SparseRows> {
 	const h = await readBinaryHeader(path);
 	const labels = new Int8Array(h.n);
@@ -516,12 +516,13 @@ export async function loadBinary(path: string, opts: Omit<ReadBinaryOptions, 'st
 	for await (const v of readBinaryChunkViews(path, opts)) {
 		if (row + v.rows > h.n || at + v.indices.length > h.nnz) throw new BinaryFormatError(`${path}: chunks hold more rows or nonzeros than the header says`);
 		labels.set(v.labels, row);
+		indices.set(v.indices, at);
+		if (values && v.values) values.set(v.values, at);
+		const lengths = v.lengths;
 		for (let i = 0; i < v.rows; i++) {
-			at += v.lengths[i];
+			at += lengths[i];
 			rowPtr[++row] = at;
 		}
-		indices.set(v.indices, at - v.indices.length);
-		if (values && v.values) values.set(v.values, at - v.indices.length);
 	}
 	if (row !== h.n || at !== h.nnz) throw new BinaryFormatError(`${path}: chunks hold ${row} rows and ${at} nonzeros but the header says ${h.n} and ${h.nnz}`);
 	return { n: h.n, d: h.d, labels, rowPtr, indices, values };
