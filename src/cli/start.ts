@@ -10,6 +10,7 @@ import { ensureLocalDatabase } from '../lib/server/db/local.js';
 import { stopCluster } from '../lib/server/db/cluster.js';
 import { createDb } from '../lib/server/db/client.js';
 import { seedDemo, DEMO_EMAIL } from '../lib/server/seed.js';
+import { startFakeStripe, type FakeStripe } from './fake-stripe.js';
 import { buildIfStale, root, serveApp, startMaildev } from './services.js';
 
 const port = Number(process.env.PORT ?? 5173);
@@ -51,11 +52,15 @@ try {
 
 	const external = Boolean(process.env.SMTP_URL);
 	if (!external) children.push(await startMaildev(smtpPort, inboxPort));
+	// With a real STRIPE_SECRET_KEY (and no STRIPE_API_BASE) the app talks to Stripe itself; otherwise to the fake here.
+	const realStripe = Boolean(process.env.STRIPE_SECRET_KEY && !process.env.STRIPE_API_BASE);
+	const fakeStripe: FakeStripe | null = realStripe ? null : await startFakeStripe(Number(process.env.STRIPE_FAKE_PORT ?? 12111));
 	buildIfStale();
 	const app = await serveApp(port, {
 		DATABASE_URL: database.url,
 		AUTH_SECRET: authSecret(),
-		SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}`
+		SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}`,
+		...(fakeStripe && { STRIPE_API_BASE: fakeStripe.url })
 	});
 	children.push(app);
 	app.on('exit', (code) => {
@@ -68,6 +73,7 @@ Loadline is running.
   App:         http://127.0.0.1:${port}
   Database:    ${database.url}${database.dataDir ? ` (cluster in ${database.dataDir})` : ''}
   Fake inbox:  ${external ? `real SMTP at ${process.env.SMTP_URL}` : `http://127.0.0.1:${inboxPort}  (SMTP on 127.0.0.1:${smtpPort})`}
+  Fake Stripe: ${fakeStripe ? `${fakeStripe.url}  (in memory; webhooks to /api/billing/webhook, dev signing secret unless STRIPE_WEBHOOK_SECRET)` : 'real Stripe (STRIPE_SECRET_KEY)'}
   Demo data:   ${seeded.created ? 'created' : 'already present'}
 
 Sign in as the demo user: open http://127.0.0.1:${port}/signin, enter ${DEMO_EMAIL},

@@ -11,12 +11,17 @@ import type { TestProject } from 'vitest/node';
 import { ensureDatabase, freePort, startCluster, stopCluster } from '../../src/lib/server/db/cluster.js';
 import { applyMigrations } from '../../src/lib/server/db/migrate.js';
 import { buildIfStale, serveApp, startMaildev } from '../../src/cli/services.js';
+import { startFakeStripe } from '../../src/cli/fake-stripe.js';
 
 declare module 'vitest' {
 	export interface ProvidedContext {
 		baseUrl: string;
 		inboxUrl: string;
 		databaseUrl: string;
+		/** the local fake Stripe API the app talks to */
+		stripeUrl: string;
+		/** the secret the app verifies webhook signatures with */
+		stripeWebhookSecret: string;
 	}
 }
 
@@ -31,21 +36,31 @@ export default async function setup(project: TestProject) {
 	const inboxPort = await freePort();
 	const maildev = await startMaildev(smtpPort, inboxPort, join(dir, 'mail'));
 
+	const stripe = await startFakeStripe();
+	const stripeWebhookSecret = `whsec_test_${randomBytes(16).toString('hex')}`;
+
 	buildIfStale();
 	const appPort = await freePort();
 	const app = await serveApp(appPort, {
 		DATABASE_URL: databaseUrl,
 		AUTH_SECRET: randomBytes(32).toString('base64url'),
-		SMTP_URL: `smtp://127.0.0.1:${smtpPort}`
+		SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
+		STRIPE_API_BASE: stripe.url,
+		STRIPE_WEBHOOK_SECRET: stripeWebhookSecret,
+		// tests give each sign-in request its own client address, so the per-client rate limit stays testable
+		CLIENT_IP_HEADER: 'x-forwarded-for'
 	});
 
 	project.provide('baseUrl', `http://127.0.0.1:${appPort}`);
 	project.provide('inboxUrl', `http://127.0.0.1:${inboxPort}`);
 	project.provide('databaseUrl', databaseUrl);
+	project.provide('stripeUrl', stripe.url);
+	project.provide('stripeWebhookSecret', stripeWebhookSecret);
 
 	return async () => {
 		app.kill('SIGTERM');
 		maildev.kill('SIGTERM');
+		await stripe.close();
 		try {
 			stopCluster(dataDir);
 		} finally {
