@@ -22,6 +22,8 @@ declare module 'vitest' {
 		stripeUrl: string;
 		/** the secret the app verifies webhook signatures with */
 		stripeWebhookSecret: string;
+		/** the fake inbox's SMTP address, for tests that send mail from server modules directly */
+		smtpUrl: string;
 	}
 }
 
@@ -56,6 +58,7 @@ export default async function setup(project: TestProject) {
 	project.provide('databaseUrl', databaseUrl);
 	project.provide('stripeUrl', stripe.url);
 	project.provide('stripeWebhookSecret', stripeWebhookSecret);
+	project.provide('smtpUrl', `smtp://127.0.0.1:${smtpPort}`);
 
 	return async () => {
 		app.kill('SIGTERM');

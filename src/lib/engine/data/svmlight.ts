@@ -47,6 +47,8 @@ export interface ParseOptions {
 }
 
 const MAX_INDEX = 4294967295;
+/** values above this round to Infinity as f32 (largest f32 plus half an ulp) */
+const F32_MAX = 3.4028235677973366e38;
 const P10 = Array.from({ length: 23 }, (_, i) => 10 ** i);
 const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 const NOT_FINITE = /^[+-]?(nan|inf|infinity)$/i;
@@ -160,6 +162,7 @@ export class SvmlightParser {
 			let mayQid = true;
 			for (;;) {
 				c = buf[pos];
+				if (c === 32) c = buf[++pos];
 				while (c === 32 || c === 9 || c === 13) c = buf[++pos];
 				if (c === 10) {
 					pos++;
@@ -257,7 +260,7 @@ export class SvmlightParser {
 						else if (NOT_FINITE.test(s)) this.fail(`value "${s}" of feature ${idx} is not finite`);
 						else this.fail(`value "${s}" of feature ${idx} is not a number`);
 					}
-					if (!Number.isFinite(Math.fround(v))) this.fail(`value "${text(buf, vStart, pos)}" of feature ${idx} is too large for a 32-bit float`);
+					if (!(Math.abs(v) <= F32_MAX)) this.fail(`value "${text(buf, vStart, pos)}" of feature ${idx} is too large for a 32-bit float`);
 					if (v !== 1) allOnes = false;
 				}
 				if (nnz === indices.length) {
