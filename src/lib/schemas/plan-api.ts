@@ -36,3 +36,7 @@ export const planListQuery = z.object({
 });
 
 export type PlanListQuery = z.infer<typeof planListQuery>;
+
+/** The plan editor's form: the plan schema with a required name. */
+export const planEditorSchema = planSchema.extend({ name: planName });
+export type PlanEditor = z.infer<typeof planEditorSchema>;

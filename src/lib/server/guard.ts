@@ -9,6 +9,7 @@ import type { Role } from './db/schema.js';
 import * as teams from './teams.js';
 import * as projects from './projects.js';
 import * as plans from './plans.js';
+import * as machines from './machines.js';
 
 export type Need = 'read' | 'edit' | 'manage' | 'own';
 
@@ -73,4 +74,14 @@ export async function plan(event: RequestEvent, planId: string, need: Need) {
 	if (!p || !m) error(404, { code: 'not_found', message: 'No such plan.' });
 	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
 	return { user: me, team: m, role: m.role, plan: p };
+}
+
+/** A catalog machine and the user's membership in its team. */
+export async function machine(event: RequestEvent, machineId: string, need: Need) {
+	const me = await user(event);
+	const m0 = UUID.test(machineId) ? await machines.get(machineId) : null;
+	const m = m0 ? await teams.membership(m0.teamId, me.id) : null;
+	if (!m0 || !m) error(404, { code: 'not_found', message: 'No such machine.' });
+	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
+	return { user: me, team: m, role: m.role, machine: m0 };
 }
