@@ -45,9 +45,11 @@ export interface ResolvedCalibration {
 	meta: CalibrationMeta;
 }
 
-const builtInRecord = calibrationRecordSchema.parse(builtIn);
+let builtInRecord: CalibrationRecord | null = null;
 
 export function builtInCalibration(plan?: Plan): ResolvedCalibration {
+	// Parsed on first use, not at import: the build imports this module without running it.
+	builtInRecord ??= calibrationRecordSchema.parse(builtIn);
 	return {
 		record: builtInRecord,
 		meta: {
