@@ -44,8 +44,11 @@ export const machineProbeSchema = z.strictObject({
 		readMethod: z.string(),
 		cacheBypassed: z.boolean(),
 		readBytes: z.number(),
+		interfaceGuessed: z.boolean(),
+		/** engine per-nonzero and per-update cost on the reference kernel */
 		nsPerNnz: z.number(),
-		nsPerNnzFeatures: z.number()
+		nsPerUpdate: z.number(),
+		kernel: z.string()
 	})
 });
 

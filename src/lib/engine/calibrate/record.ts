@@ -33,7 +33,9 @@ export const calibrationRunSchema = z.object({
 	wallSeconds: z.number(),
 	peakMemoryBytes: z.number(),
 	outerIterations: z.number(),
-	gap: z.number()
+	gap: z.number(),
+	/** ns per update of the reference kernel measured just before this strategy's runs (machine load at the time) */
+	referenceNs: z.number().positive()
 });
 
 /** Per-update cost of the sparse kernel at one (k, d). */
@@ -53,8 +55,10 @@ export const calibrationRecordSchema = z.object({
 		node: z.string(),
 		platform: z.string(),
 		date: z.string(),
-		/** relative core speed of this machine (reference core = 1, see model/scale.ts) */
-		coreSpeed: z.number().positive()
+		/** relative core speed of this machine (reference core = 1, see calibrate/kernel.ts) */
+		coreSpeed: z.number().positive(),
+		/** ns per update of the reference kernel when the kernel points were measured */
+		referenceNs: z.number().positive()
 	}),
 	/** the plan this calibration was made for */
 	plan: planSchema,

@@ -16,9 +16,9 @@ import type { StrategyName } from '../types.js';
 import { generateToFile, GENERATE_DEFAULTS } from '../data/generate.js';
 import { train } from '../solver/train.js';
 import { budgetShape, binaryBytesPerRow, updatesPerRead } from '../model/ratios.js';
-import { engineStateBytes, rowsInRamBytes } from '../model/sizes.js';
+import { budgetForRows, engineStateBytes, rowsInRamBytes } from '../model/sizes.js';
 import { fitKernelLines, kernelNs } from '../model/fit.js';
-import { measureCoreSpeed, measureKernel } from './kernel.js';
+import { measureCoreSpeed, measureKernel, REFERENCE_NS_PER_UPDATE } from './kernel.js';
 import { measureDecode } from './measure.js';
 import { STRATEGIES, type CalibrationRecord, type CalibrationRun, type KernelPoint } from './record.js';
 
@@ -72,7 +72,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 	const dir = opts.workDir ?? mkdtempSync(join(tmpdir(), 'loadline-calibration-'));
 	try {
 		progress('machine', 'measuring relative core speed');
-		const core = measureCoreSpeed(0.15);
+		const reference = () => measureCoreSpeed(0.08).nsPerUpdate;
+		const kernelReference = reference();
 
 		progress('kernel', 'measuring cost per coordinate update');
 		const kernel: KernelPoint[] = [];
@@ -99,7 +100,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		const decode = await measureDecode(await dataFile(decodeRows, seeds[0]), await dataFile(decodeRows, seeds[0], 'svm'));
 
 		// the target machine's ratios
-		const scale = core.coreSpeed / plan.machine.coreSpeed;
+		const coreSpeed = REFERENCE_NS_PER_UPDATE / kernelReference;
+		const scale = coreSpeed / plan.machine.coreSpeed;
 		const targetReadBps = Math.min(plan.machine.diskMBps * 1e6, (decode.binaryMBps * 1e6) / scale);
 		// reader rate here that keeps the trainer-to-reader ratio: the target rate × (core speed here / there)
 		const calReadBps = targetReadBps * scale;
@@ -113,6 +115,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		for (const s of strategies) {
 			const share = ((budgetSeconds - fixed) * WEIGHTS[s]) / weightSum;
 			const started = elapsed();
+			const referenceNs = reference();
 			const targetFraction = budgetShape(plan, s, ds.rows).cacheFraction;
 			const f1 = s === 'memory' ? 1 : Math.min(1, Math.max(MIN_FRACTION, targetFraction));
 			const f2 = s === 'memory' ? 1 : f1 < 1 ? Math.min(1, f1 * 2) : 0.5;
@@ -123,9 +126,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			const runOne = async (rows: number, seed: number, fraction: number, readBps: number): Promise<CalibrationRun> => {
 				const data = await dataFile(rows, seed);
 				const logistic = tr.loss === 'logistic';
-				const state = engineStateBytes(s, rows, features, logistic);
 				const rowsRam = rowsInRamBytes(rows, k, ds.valueKind);
-				const memoryBytes = s === 'memory' ? undefined : Math.ceil(state + Math.max(fraction * rowsRam, MIN_BUDGET[s]));
+				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(fraction * rowsRam, MIN_BUDGET[s]));
+				const state = engineStateBytes(s, rows, features, logistic, memoryBytes);
 				const diskMBps = throttle(readBps);
 				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps });
 				const bytesOnDisk = binaryBytesPerRow(rows, k, ds.valueKind) * rows;
@@ -150,7 +153,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 					wallSeconds: rep.wallSeconds,
 					peakMemoryBytes: rep.peakMemoryBytes,
 					outerIterations: rep.outerIterations,
-					gap: rep.gap
+					gap: rep.gap,
+					referenceNs
 				};
 				runs.push(run);
 				progress(s, `${s}: ${rows} rows, cache fraction ${run.cacheFraction.toFixed(3)}, ${rep.passes} passes, ${rep.wallSeconds.toFixed(2)} s`);
@@ -199,7 +203,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				node: process.version,
 				platform: `${platform()} ${process.arch}`,
 				date: new Date().toISOString(),
-				coreSpeed: core.coreSpeed
+				// at the time the kernel and decode speeds were measured; runs carry their own reference for load
+				coreSpeed,
+				referenceNs: kernelReference
 			},
 			plan,
 			features,

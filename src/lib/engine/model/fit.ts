@@ -36,6 +36,9 @@ export interface StrategyFit {
 	seedSpread: number;
 	/** largest rows calibrated */
 	rowsMax: number;
+	/** calibrated [min, max] of the cache fraction and of updates per read */
+	fractionRange: [number, number];
+	updatesPerReadRange: [number, number];
 }
 
 export interface FittedModel {
@@ -114,10 +117,12 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: Str
 	const b = boundsFor(strategy);
 	const xs = runs.map(features);
 	const k = rec.plan.dataset.nnzPerRow;
+	// kernel cost at the machine load of each run: scaled by the reference kernel then and at kernel time
 	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
-	const computeModel = runs.map((r) => r.updates * tKernel);
+	const load = (r: CalibrationRun) => r.referenceNs / rec.machine.referenceNs;
+	const computeModel = runs.map((r) => r.updates * tKernel * load(r));
 	const costRatio = median(runs.map((r, i) => r.computeSeconds / computeModel[i]));
-	const implied = (r: CalibrationRun) => (r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds);
+	const implied = (r: CalibrationRun) => ((r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds)) * load(r);
 	const free = runs.filter((r) => r.diskMBps === null);
 	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
 	const throttled = runs.filter((r) => r.diskMBps !== null && r.diskMBps * 1e6 < decodeBps);
@@ -155,7 +160,9 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: Str
 		overlap: lap.coef[1],
 		overheadSeconds: Math.max(0, lap.coef[0]),
 		seedSpread: dof > 0 ? Math.sqrt(ss / dof) : 0.1,
-		rowsMax: Math.max(...runs.map((r) => r.rows))
+		rowsMax: Math.max(...runs.map((r) => r.rows)),
+		fractionRange: [Math.min(...runs.map((r) => r.cacheFraction)), Math.max(...runs.map((r) => r.cacheFraction))],
+		updatesPerReadRange: [Math.min(...runs.map((r) => r.updatesPerRead)), Math.max(...runs.map((r) => r.updatesPerRead))]
 	};
 }
 

@@ -148,6 +148,17 @@ function differences(plan: Plan, rec: CalibrationRecord): string[] {
 	return out;
 }
 
+/** Where a strategy is evaluated outside the ratios its calibration ran at (more than 25 % off). */
+function outside(e: StrategyEstimate, f: StrategyFit): string[] {
+	const out: string[] = [];
+	const off = (x: number, [lo, hi]: [number, number]) => x < lo * 0.75 || x > hi * 1.25;
+	if (e.strategy !== 'memory' && off(e.cacheFraction, f.fractionRange))
+		out.push(`${e.strategy}: cache fraction ${e.cacheFraction.toPrecision(2)} is outside the calibrated ${f.fractionRange.map((x) => x.toPrecision(2)).join('–')}: extrapolated`);
+	if (e.strategy === 'stream' && off(e.updatesPerRead, f.updatesPerReadRange))
+		out.push(`stream: ${e.updatesPerRead.toPrecision(2)} updates per row read is outside the calibrated ${f.updatesPerReadRange.map((x) => x.toPrecision(2)).join('–')}: extrapolated`);
+	return out;
+}
+
 /** Estimates for every strategy of a plan, from a calibration record (fitted once, cached). */
 export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel): Estimate {
 	const model = 'kernel' in calibration && 'strategies' in calibration ? (calibration as FittedModel) : fitModel(calibration as CalibrationRecord);
@@ -156,7 +167,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 	const folds = plan.training.folds;
 	const rows = folds > 1 ? Math.max(1, Math.round((ds.rows * (folds - 1)) / folds)) : ds.rows;
 	const cpuScale = rec.machine.coreSpeed / plan.machine.coreSpeed;
-	const binBytes = binaryBytes(rows, ds.nnzPerRow, ds.valueKind);
+	// binary rows as stated in the plan, else as the binary row format lays them out
+	const binBytes = ds.format === 'binary' && !ds.compressed && ds.bytesOnDisk !== undefined ? (ds.bytesOnDisk * rows) / ds.rows : binaryBytes(rows, ds.nnzPerRow, ds.valueKind);
 	const calibratedRows = Math.max(...Object.values(model.strategies).map((f) => f.rowsMax));
 	const factor = rows / calibratedRows;
 	const widening = WIDEN_PER_DECADE * Math.log10(Math.max(1, factor));
@@ -190,7 +202,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		`scaled to the plan's machine: CPU work × ${cpuScale.toPrecision(3)} (core speed ${rec.machine.coreSpeed.toPrecision(3)} → ${plan.machine.coreSpeed}), reads at ${plan.machine.diskMBps} MB/s`,
 		...(ds.features > rec.features ? [`weights of ${formatBytes(weightBytes(ds.features))} exceed the ${formatBytes(weightBytes(rec.features))} calibration could hold: per-update cost is extrapolated`] : []),
 		...(plan.training.cValues > 1 ? ['a sweep assumes every C value costs what training.C costs'] : []),
-		...differences(plan, rec)
+		...differences(plan, rec),
+		...strategies.flatMap((e) => outside(e, model.strategies[e.strategy]!))
 	];
 	return {
 		strategies,

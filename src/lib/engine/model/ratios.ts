@@ -24,7 +24,7 @@ export interface BudgetShape {
 export function budgetShape(plan: Plan, strategy: StrategyName, rows: number): BudgetShape {
 	const ds = plan.dataset;
 	const budget = Math.max(0, usableRamBytes(plan.machine.ramGiB) - RUNTIME_BYTES);
-	const state = engineStateBytes(strategy, rows, ds.features, plan.training.loss === 'logistic');
+	const state = engineStateBytes(strategy, rows, ds.features, plan.training.loss === 'logistic', budget);
 	const rowsRam = rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind);
 	return { budget, state, rowsRam, cacheFraction: Math.min(1, Math.max(1, budget - state) / rowsRam) };
 }

@@ -82,9 +82,20 @@ export function formatBytes(bytes: number): string {
 
 /**
  * What the engine counts for a strategy besides the rows in its budget: w and α, plus the
- * margin log (8n) of block, selective and stream, plus selective's cache flag per example.
+ * margin log (8n) of block, selective and stream, selective's cache flag per example, and
+ * stream's resident flags (1n) and two read buffers of memoryBytes/16 (64 KiB to 8 MiB each).
  */
-export function engineStateBytes(strategy: 'memory' | 'block' | 'selective' | 'stream', rows: number, features: number, logistic: boolean): number {
+export function engineStateBytes(strategy: 'memory' | 'block' | 'selective' | 'stream', rows: number, features: number, logistic: boolean, memoryBytes = Infinity): number {
 	if (strategy === 'memory') return stateBytes(rows, features, logistic, false);
-	return stateBytes(rows, features, logistic, true) + (strategy === 'selective' ? rows : 0);
+	const state = stateBytes(rows, features, logistic, true);
+	if (strategy === 'selective') return state + rows;
+	if (strategy === 'stream') return state + rows + 2 * Math.max(64 * 1024, Math.min(8 << 20, Math.floor(memoryBytes / 16))) + 1024;
+	return state;
+}
+
+/** The memory budget that leaves `rowBytes` for rows after the engine's own state (stream's buffers grow with the budget). */
+export function budgetForRows(strategy: 'memory' | 'block' | 'selective' | 'stream', rows: number, features: number, logistic: boolean, rowBytes: number): number {
+	let budget = engineStateBytes(strategy, rows, features, logistic, 0) + rowBytes;
+	for (let i = 0; i < 4; i++) budget = engineStateBytes(strategy, rows, features, logistic, budget) + rowBytes;
+	return Math.ceil(budget);
 }
