@@ -6,7 +6,9 @@ const config = {
 	preprocess: vitePreprocess(),
 	kit: {
 		// SvelteKit's own origin check for form posts stays on (default); API routes add their own in hooks.server.ts.
-		adapter: adapter(),
+		// Tests build into their own folders (LOADLINE_BUILD_DIR, LOADLINE_KIT_DIR) so a running app is never rebuilt under it.
+		adapter: adapter({ out: process.env.LOADLINE_BUILD_DIR || 'build' }),
+		outDir: process.env.LOADLINE_KIT_DIR || '.svelte-kit',
 		csp: {
 			mode: 'auto',
 			directives: {

@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { ensureDatabase, freePort, startCluster, stopCluster } from '../../src/lib/server/db/cluster.js';
 import { applyMigrations } from '../../src/lib/server/db/migrate.js';
-import { buildIfStale, serveApp, startMaildev } from '../../src/cli/services.js';
+import { buildIfStale, serveApp, startMaildev, TEST_BUILD } from '../../src/cli/services.js';
 import { startFakeStripe } from '../../src/cli/fake-stripe.js';
 
 declare module 'vitest' {
@@ -24,6 +24,10 @@ declare module 'vitest' {
 		stripeWebhookSecret: string;
 		/** the fake inbox's SMTP address, for tests that send mail from server modules directly */
 		smtpUrl: string;
+		/** the throwaway cluster's folder, for tests that stop and start PostgreSQL */
+		pgDataDir: string;
+		/** where the app stores sample uploads (UPLOAD_DIR); workers started by tests need it too */
+		uploadDir: string;
 	}
 }
 
@@ -41,9 +45,13 @@ export default async function setup(project: TestProject) {
 	const stripe = await startFakeStripe();
 	const stripeWebhookSecret = `whsec_test_${randomBytes(16).toString('hex')}`;
 
-	buildIfStale();
+	buildIfStale(TEST_BUILD);
 	const appPort = await freePort();
+	const uploadDir = join(dir, 'uploads');
 	const app = await serveApp(appPort, {
+		UPLOAD_DIR: uploadDir,
+		// small, so the upload-limit cases stay fast
+		UPLOAD_LIMIT_BYTES: String(4 * 2 ** 20),
 		DATABASE_URL: databaseUrl,
 		AUTH_SECRET: randomBytes(32).toString('base64url'),
 		SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
@@ -51,7 +59,7 @@ export default async function setup(project: TestProject) {
 		STRIPE_WEBHOOK_SECRET: stripeWebhookSecret,
 		// tests give each sign-in request its own client address, so the per-client rate limit stays testable
 		CLIENT_IP_HEADER: 'x-forwarded-for'
-	});
+	}, TEST_BUILD);
 
 	project.provide('baseUrl', `http://127.0.0.1:${appPort}`);
 	project.provide('inboxUrl', `http://127.0.0.1:${inboxPort}`);
@@ -59,6 +67,8 @@ export default async function setup(project: TestProject) {
 	project.provide('stripeUrl', stripe.url);
 	project.provide('stripeWebhookSecret', stripeWebhookSecret);
 	project.provide('smtpUrl', `smtp://127.0.0.1:${smtpPort}`);
+	project.provide('pgDataDir', dataDir);
+	project.provide('uploadDir', uploadDir);
 
 	return async () => {
 		app.kill('SIGTERM');
