@@ -67,6 +67,7 @@ export interface BinaryFileHeader extends BinaryHeader {
 export class BinaryFormatError extends Error {}
 
 const pad4 = (x: number) => (x + 3) & ~3;
+const readU32 = (b: Uint8Array, at: number) => (b[at] | (b[at + 1] << 8) | (b[at + 2] << 16) | (b[at + 3] << 24)) >>> 0;
 
 /** Bytes of one chunk record. */
 export function chunkRecordBytes(rows: number, nnz: number, valueKind: ValueKind): number {
@@ -339,8 +340,8 @@ export interface ChunkView {
  */
 export function parseChunk(buf: Uint8Array, offset: number, header: Pick<BinaryHeader, 'valueKind'>): ChunkView | null {
 	if (offset + 8 > buf.length) return null;
-	const rows = (buf[offset] | (buf[offset + 1] << 8) | (buf[offset + 2] << 16) | (buf[offset + 3] << 24)) >>> 0;
-	const nnz = (buf[offset + 4] | (buf[offset + 5] << 8) | (buf[offset + 6] << 16) | (buf[offset + 7] << 24)) >>> 0;
+	const rows = readU32(buf, offset);
+	const nnz = readU32(buf, offset + 4);
 	if (rows === 0) throw new BinaryFormatError(`chunk at buffer offset ${offset} holds 0 rows (damaged file or wrong offset)`);
 	const bytes = chunkRecordBytes(rows, nnz, header.valueKind);
 	if (offset + bytes > buf.length) return null;
@@ -364,7 +365,7 @@ export function parseChunk(buf: Uint8Array, offset: number, header: Pick<BinaryH
 }
 
 export interface ReadBinaryOptions {
-	/** bytes per read; default 8 MiB (grown when one record is larger) */
+	/** bytes per read; default 8 MiB (grown when one record is larger). Two buffers of this size are used: one is read into while the other's chunks are yielded */
 	chunkBytes?: number;
 	/** emulate a disk of this many MB/s (1e6 bytes); default unthrottled */
 	throttleMBps?: number;
@@ -404,6 +405,7 @@ async function readChunkIndex(fh: FileHandle, h: BinaryFileHeader): Promise<{ of
  */
 export async function* readBinaryChunkViews(path: string, opts: ReadBinaryOptions = {}): AsyncGenerator<ChunkViewAt> {
 	const fh = await open(path, 'r');
+	let pending: Promise<number> | null = null;
 	try {
 		const h = await readHeaderFrom(fh, path);
 		const throttle = new Throttle(opts.throttleMBps);
@@ -425,44 +427,66 @@ export async function* readBinaryChunkViews(path: string, opts: ReadBinaryOption
 			row = firstRows[lo];
 		}
 		const end = h.indexOffset;
-		let buf = new Uint8Array(Math.max(4096, pad4(opts.chunkBytes ?? DEFAULT_READ_BYTES)));
-		let bufFileOffset = readPos;
-		let filled = 0;
-		let pos = 0;
-		while (true) {
-			let view: ChunkView | null;
-			while ((view = parseChunk(buf.subarray(0, filled), pos, h)) !== null) {
-				const at: ChunkViewAt = { ...view, firstRow: row, fileOffset: bufFileOffset + pos, bytes: view.nextOffset - pos };
+		const size = Math.max(4096, pad4(opts.chunkBytes ?? DEFAULT_READ_BYTES));
+		// two buffers: the next read fills one while the chunks of the other are yielded
+		let cur = new Uint8Array(size);
+		let next = new Uint8Array(size);
+		let curFileOffset = readPos;
+		const readInto = async (buf: Uint8Array, at: number): Promise<number> => {
+			const offset = readPos;
+			const want = Math.min(buf.length - at, end - offset);
+			readPos += want;
+			await throttle.take(want);
+			let done = 0;
+			while (done < want) {
+				const { bytesRead } = await fh.read(buf, at + done, want - done, offset + done);
+				if (bytesRead === 0) throw new BinaryFormatError(`${path}: unexpected end of file at byte ${offset + done}`);
+				done += bytesRead;
+			}
+			opts.onRead?.(offset, want);
+			return want;
+		};
+		const recordAt = (buf: Uint8Array, at: number) => chunkRecordBytes(readU32(buf, at), readU32(buf, at + 4), h.valueKind);
+		let filled = await readInto(cur, 0);
+		for (;;) {
+			// complete records in cur[0, cut)
+			let cut = 0;
+			while (cut + 8 <= filled && cut + recordAt(cur, cut) <= filled) cut += recordAt(cur, cut);
+			const rest = filled - cut;
+			if (cut === 0) {
+				if (rest === 0 && readPos >= end) break;
+				if (readPos >= end) throw new BinaryFormatError(`${path}: ${rest} bytes of a partial chunk before the chunk index`);
+				// one record larger than the buffer: grow it, then read on into the same buffer
+				if (rest >= 8 && recordAt(cur, 0) > cur.length) {
+					const bigger = new Uint8Array(pad4(recordAt(cur, 0)));
+					bigger.set(cur.subarray(0, rest));
+					cur = bigger;
+				}
+				filled += await readInto(cur, filled);
+				continue;
+			}
+			// the partial record moves to the front of the other buffer; records start on 4-byte file offsets, so alignment holds
+			if (rest >= 8 && recordAt(cur, cut) > next.length) next = new Uint8Array(pad4(recordAt(cur, cut)));
+			next.set(cur.subarray(cut, filled), 0);
+			pending = readPos < end ? readInto(next, rest) : null;
+			let pos = 0;
+			while (pos < cut) {
+				const view = parseChunk(cur, pos, h)!;
+				const at: ChunkViewAt = { ...view, firstRow: row, fileOffset: curFileOffset + pos, bytes: view.nextOffset - pos };
 				row += view.rows;
 				pos = view.nextOffset;
 				if (row > startRow) yield at;
 			}
-			if (readPos >= end) break;
-			// keep the partial record; it starts on a 4-byte file offset, so moving it to 0 keeps alignment
-			const rest = filled - pos;
-			if (pos > 0) buf.copyWithin(0, pos, filled);
-			bufFileOffset += pos;
-			filled = rest;
-			pos = 0;
-			if (rest >= 8) {
-				const need = chunkRecordBytes(new Uint32Array(buf.buffer, 0, 2)[0], new Uint32Array(buf.buffer, 0, 2)[1], h.valueKind);
-				if (need > buf.length) {
-					const bigger = new Uint8Array(pad4(need));
-					bigger.set(buf.subarray(0, rest));
-					buf = bigger;
-				}
-			}
-			const want = Math.min(buf.length - filled, end - readPos);
-			await throttle.take(want);
-			const { bytesRead } = await fh.read(buf, filled, want, readPos);
-			if (bytesRead === 0) throw new BinaryFormatError(`${path}: unexpected end of file at byte ${readPos}`);
-			opts.onRead?.(readPos, bytesRead);
-			readPos += bytesRead;
-			filled += bytesRead;
+			const got = pending ? await pending : 0;
+			pending = null;
+			[cur, next] = [next, cur];
+			curFileOffset += cut;
+			filled = rest + got;
 		}
-		if (filled !== pos) throw new BinaryFormatError(`${path}: ${filled - pos} bytes of a partial chunk before the chunk index`);
 		if (row !== h.n) throw new BinaryFormatError(`${path}: chunks hold ${row} rows but the header says ${h.n}`);
 	} finally {
+		// a consumer that stops early leaves a read in flight: let it land before closing
+		if (pending) await pending.catch(() => {});
 		await fh.close();
 	}
 }

@@ -8,6 +8,7 @@ import {
 	loadBinary,
 	parseChunk,
 	readBinaryChunks,
+	readBinaryChunkViews,
 	readBinaryHeader
 } from '../../../../src/lib/engine/data/binary.js';
 import type { SparseRows } from '../../../../src/lib/engine/types.js';
@@ -131,6 +132,19 @@ describe('binary row format', () => {
 		for await (const c of readBinaryChunks(path, { chunkBytes: 4096 })) kept.push(c.rows);
 		const again = await loadBinary(path);
 		expect(kept.flatMap(rowsOf)).toEqual(rowsOf(again));
+	});
+
+	it('a consumer may stop early while the next read is in flight', async () => {
+		const { path } = await writeSample('e.bin', 2000, true, 16);
+		const reads: number[] = [];
+		let seen = 0;
+		for await (const c of readBinaryChunkViews(path, { chunkBytes: 4096, onRead: (o) => reads.push(o) })) {
+			seen += c.rows;
+			if (seen >= 32) break;
+		}
+		expect(seen).toBe(32);
+		// the first buffer plus at most one read ahead
+		expect(reads.length).toBeLessThanOrEqual(2);
 	});
 
 	it('startRow begins mid-chunk at exactly that row', async () => {
