@@ -85,6 +85,7 @@ export class SvmDualCoordinateDescent implements CoordinateSolver {
 		const { alpha, margins } = this.ws;
 		const { w, qd, index, diag, upper, rng, shrinking } = this;
 		let active = this.activeSize;
+		const smallPtr = rowPtr[n] < 2 ** 31;
 		for (let s = 0; s < active; s++) {
 			const j = s + Math.floor(rng() * (active - s));
 			const t = index[s];
@@ -99,8 +100,9 @@ export class SvmDualCoordinateDescent implements CoordinateSolver {
 		for (let s = 0; s < active; s++) {
 			const i = index[s];
 			const yi = labels[i];
-			const start = rowPtr[i];
-			const end = rowPtr[i + 1];
+			// small int row offsets keep the kernels' loop counters in integer registers
+			const start = smallPtr ? rowPtr[i] | 0 : rowPtr[i];
+			const end = smallPtr ? rowPtr[i + 1] | 0 : rowPtr[i + 1];
 			const m = yi * dot(w, indices, values, start, end);
 			const a = alpha[i];
 			const G = m - 1 + diag * a;

@@ -65,11 +65,13 @@ export class LogisticDualCoordinateDescent implements CoordinateSolver {
 		}
 		let gMax = 0;
 		let newtonSteps = 0;
+		// small int row offsets keep the kernels' loop counters in integer registers
+		const smallPtr = rowPtr[n] < 2 ** 31;
 		for (let s = 0; s < n; s++) {
 			const i = index[s];
 			const yi = labels[i];
-			const start = rowPtr[i];
-			const end = rowPtr[i + 1];
+			const start = smallPtr ? rowPtr[i] | 0 : rowPtr[i];
+			const end = smallPtr ? rowPtr[i + 1] | 0 : rowPtr[i + 1];
 			const a = xsq[i];
 			if (alpha[i] === 0 && comp[i] === C) {
 				// first visit: step inside the open box so the log terms are defined

@@ -5,6 +5,7 @@
  *   seed         seed of the random coordinate order                   default 1
  *   memoryBytes  budget for blocks / cache (block, selective, stream)  default: unlimited (memory), 256 MiB (others)
  *   diskMBps     reader throttle in MB/s                               default: unthrottled
+ *                (files in the page cache read at memory speed; the throttle emulates the target's disk)
  *   compress     block strategy: zlib-compress the block files         default false
  *   innerEpochs  block and selective: epochs on each block per visit   default 3
  *   cacheFraction selective: share of the budget kept for the cache    default 0.5

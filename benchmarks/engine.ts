@@ -1,0 +1,117 @@
+/**
+ * Training benchmark: in-memory epoch time per nonzero against liblinear-train on the same rows,
+ * at a small (< 1 MB) and a large (> 100 MB) weight vector, and the stream strategy's coordinate
+ * updates per second and reader MB/s while the trainer runs.
+ *
+ * Run: npx tsx benchmarks/engine.ts [--sets 1m50-d50k,1m50-d20m,200k500-d50k,200k500-d20m] [--no-liblinear] [--no-stream]
+ * Data is generated into benchmarks/data/ (git-ignored) on first use and kept (binary and svmlight text
+ * of the same seeded rows). Prints a markdown section for benchmarks/results/engine.md.
+ *
+ * liblinear per-epoch time: (T(full run) − T(one iteration, -e 1e9)) / (#iter − 1), so its load,
+ * setup and model writing cancel out. Ours runs the same solver rule (hinge, C, stop when the
+ * projected-gradient spread over all examples is ≤ 0.1, as liblinear's -e 0.1), and its per-epoch
+ * time is the time in coordinate updates / epochs; the duality-gap evaluation is reported apart.
+ */
+import { execFileSync } from 'node:child_process';
+import { existsSync, mkdirSync, statSync } from 'node:fs';
+import { cpus } from 'node:os';
+import { join } from 'node:path';
+import { parseArgs } from 'node:util';
+import { generateToFile, type GenerateOptions } from '../src/lib/engine/data/generate.js';
+import { loadBinary, readBinaryHeader } from '../src/lib/engine/data/binary.js';
+import { solveRows } from '../src/lib/engine/solver/solve-rows.js';
+import { train } from '../src/lib/engine/solver/train.js';
+import type { StreamReport } from '../src/lib/engine/solver/strategy-stream.js';
+
+const { values: flags } = parseArgs({
+	options: {
+		sets: { type: 'string', default: '1m50-d50k,1m50-d20m,200k500-d50k,200k500-d20m' },
+		C: { type: 'string', default: '0.1' },
+		'no-liblinear': { type: 'boolean', default: false },
+		'no-stream': { type: 'boolean', default: false }
+	}
+});
+
+const base = { positive: 0.4, noise: 0.05, skew: 1, values: 'binary' as const };
+const SETS: Record<string, Partial<GenerateOptions>> = {
+	'1m50-d50k': { ...base, rows: 1_000_000, features: 50_000, nnz: 50, seed: 41 },
+	'1m50-d20m': { ...base, rows: 1_000_000, features: 20_000_000, nnz: 50, seed: 42 },
+	'200k500-d50k': { ...base, rows: 200_000, features: 50_000, nnz: 500, seed: 43 },
+	'200k500-d20m': { ...base, rows: 200_000, features: 20_000_000, nnz: 500, seed: 44 }
+};
+const C = Number(flags.C);
+const dataDir = join(import.meta.dirname, 'data');
+const seconds = (t0: number) => (performance.now() - t0) / 1000;
+const log = (s: string) => process.stderr.write(s + '\n');
+
+async function ensure(name: string): Promise<{ bin: string; svm: string }> {
+	mkdirSync(dataDir, { recursive: true });
+	const bin = join(dataDir, `train-${name}.bin`);
+	const svm = join(dataDir, `train-${name}.svm`);
+	for (const [path, format] of [[bin, 'bin'], [svm, 'svm']] as const) {
+		if (existsSync(path)) continue;
+		log(`generating ${path}`);
+		await generateToFile(SETS[name], path + '.part', format);
+		execFileSync('mv', [path + '.part', path]);
+	}
+	return { bin, svm };
+}
+
+function liblinear(svm: string, eps: number): { s: number; iters: number } {
+	const t0 = performance.now();
+	const out = execFileSync('liblinear-train', ['-s', '3', '-c', String(C), '-e', String(eps), '-B', '-1', svm, '/tmp/loadline-bench.model'], { maxBuffer: 1 << 24 }).toString();
+	const s = seconds(t0);
+	const m = out.match(/#iter = (\d+)/);
+	return { s, iters: m ? Number(m[1]) : NaN };
+}
+
+const machine = `${cpus()[0]?.model ?? 'unknown CPU'}, ${cpus().length} cores`;
+const date = new Date().toISOString().slice(0, 10);
+const lines: string[] = [];
+lines.push(`Machine: ${machine}; ${date}; Node ${process.version}. Command: \`npx tsx benchmarks/engine.ts --sets ${flags.sets} --C ${C}\`.`, '');
+
+if (!flags['no-liblinear']) {
+	lines.push(`### In-memory epoch time per nonzero, hinge (L1-loss SVM dual), C = ${C}, against liblinear-train -s 3`, '');
+	lines.push('| data | w size | liblinear #iter | liblinear s/epoch | ours epochs | ours s/epoch (updates) | ns per nonzero, ours / liblinear | ratio | one gap evaluation s (ours) | liblinear load s |');
+	lines.push('|---|---|---|---|---|---|---|---|---|---|');
+}
+for (const name of flags.sets.split(',')) {
+	if (!SETS[name]) throw new Error(`--sets: unknown set "${name}" (known: ${Object.keys(SETS).join(', ')})`);
+	const { bin, svm } = await ensure(name);
+	const h = await readBinaryHeader(bin);
+	if (flags['no-liblinear']) continue;
+	log(`${name}: liblinear full run`);
+	const full = liblinear(svm, 0.1);
+	log(`  ${full.s.toFixed(1)} s, ${full.iters} iterations; one-iteration run`);
+	const one = liblinear(svm, 1e9);
+	const llEpoch = (full.s - one.s) / (full.iters - 1);
+	log(`  ${one.s.toFixed(1)} s → ${llEpoch.toFixed(4)} s/epoch; ours`);
+	const rows = await loadBinary(bin);
+	const ours = solveRows(rows, { loss: 'hinge', C, tol: 1e-12, maxEpochs: 100_000, seed: 1, referenceStop: true });
+	const ourEpoch = ours.updateSeconds / ours.epochs;
+	log(`  ${ours.epochs} epochs, ${ourEpoch.toFixed(4)} s/epoch`);
+	const ns = (s: number) => ((s / h.nnz) * 1e9).toFixed(2);
+	const wBytes = h.d * 8;
+	lines.push(
+		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} | ${ours.epochs} | ${ourEpoch.toFixed(4)} | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× | ${ours.gapSeconds.toFixed(4)} | ${(one.s - llEpoch).toFixed(1)} |`
+	);
+	console.log(lines.join('\n'));
+}
+
+if (!flags['no-stream']) {
+	const name = flags.sets.split(',')[0];
+	const { bin } = await ensure(name);
+	const size = statSync(bin).size;
+	lines.push('', `### Stream strategy on ${name} (${(size / 1e6).toFixed(0)} MB binary rows), hinge, C = ${C}, tol 0.01, max 30 epochs`, '');
+	lines.push('| cache budget | disk throttle | updates | updates/s (trainer) | updates/s (wall) | reader MB/s while training | passes | epochs | cache hit rate | gap | wall s | peak counted MB |');
+	lines.push('|---|---|---|---|---|---|---|---|---|---|---|---|');
+	for (const [fraction, mbps] of [[0.25, undefined], [0.25, 200]] as const) {
+		const memoryBytes = Math.floor(size * fraction) + 64 * 2 ** 20;
+		log(`stream: budget ${memoryBytes}, throttle ${mbps ?? 'none'}`);
+		const r = (await train({ data: bin, loss: 'hinge', C, strategy: 'stream', tol: 0.01, maxEpochs: 30, memoryBytes, diskMBps: mbps })) as StreamReport;
+		lines.push(
+			`| ${(memoryBytes / 1e6).toFixed(0)} MB (cache ${(r.cacheBytes / 1e6).toFixed(0)} MB) | ${mbps ? `${mbps} MB/s` : 'none'} | ${r.updates} | ${(r.updates / r.computeSeconds / 1e6).toFixed(2)} M | ${(r.updates / r.wallSeconds / 1e6).toFixed(2)} M | ${r.readerMBps.toFixed(0)} | ${r.passes} | ${r.epochs.toFixed(1)} | ${r.cacheHitRate.toFixed(3)} | ${r.gap.toExponential(2)} | ${r.wallSeconds.toFixed(1)} | ${(r.peakMemoryBytes / 1e6).toFixed(0)} |`
+		);
+	}
+}
+console.log(lines.join('\n'));
