@@ -8,7 +8,7 @@ import { axpy, dot } from '../solver/sparse.js';
 import type { KernelPoint } from './record.js';
 
 /** rows in the measured set: enough that rows themselves do not stay in cache */
-const KERNEL_NNZ = 1 << 20;
+const KERNEL_NNZ = 1 << 19;
 
 /** Measure ns per coordinate update at (k, d) for about `seconds` of work. */
 export function measureKernel(nnzPerRow: number, features: number, opts: { real?: boolean; seconds?: number; seed?: number } = {}): KernelPoint {

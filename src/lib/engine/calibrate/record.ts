@@ -55,9 +55,9 @@ export const calibrationRecordSchema = z.object({
 		node: z.string(),
 		platform: z.string(),
 		date: z.string(),
-		/** relative core speed of this machine (reference core = 1, see calibrate/kernel.ts) */
+		/** relative core speed of this machine at its median load during the calibration (reference core = 1, see calibrate/kernel.ts) */
 		coreSpeed: z.number().positive(),
-		/** ns per update of the reference kernel when the kernel points were measured */
+		/** median ns per update of the reference kernel over the calibration; kernel and decode figures are stated at this load */
 		referenceNs: z.number().positive()
 	}),
 	/** the plan this calibration was made for */

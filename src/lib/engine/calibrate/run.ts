@@ -53,6 +53,12 @@ const MIN_FRACTION = 1 / 16;
 const MIN_BUDGET: Record<StrategyName, number> = { memory: 0, block: 96 * 1024, selective: 384 * 1024, stream: 256 * 1024 };
 const MIN_ROWS = 1000;
 
+function median(xs: number[]): number {
+	const s = [...xs].sort((a, b) => a - b);
+	const m = s.length >> 1;
+	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
 export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promise<CalibrationRecord> {
 	const t0 = performance.now();
 	const elapsed = () => (performance.now() - t0) / 1000;
@@ -72,7 +78,12 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 	const dir = opts.workDir ?? mkdtempSync(join(tmpdir(), 'loadline-calibration-'));
 	try {
 		progress('machine', 'measuring relative core speed');
-		const reference = () => measureCoreSpeed(0.08).nsPerUpdate;
+		const references: number[] = [];
+		const reference = () => {
+			const r = median([0, 1, 2].map(() => measureCoreSpeed(0.03).nsPerUpdate));
+			references.push(r);
+			return r;
+		};
 		const kernelReference = reference();
 
 		progress('kernel', 'measuring cost per coordinate update');
@@ -96,7 +107,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		};
 
 		progress('decode', 'measuring decode and parse throughput');
-		const decodeRows = Math.max(MIN_ROWS, Math.min(50_000, Math.round(4e6 / (k * 6 + 8))));
+		const decodeRows = Math.max(MIN_ROWS, Math.min(50_000, Math.round(2e6 / (k * 6 + 8))));
 		const decode = await measureDecode(await dataFile(decodeRows, seeds[0]), await dataFile(decodeRows, seeds[0], 'svm'));
 
 		// the target machine's ratios
@@ -192,6 +203,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				await runOne(at.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2);
 			}
 		}
+		// other load on the machine moves single measurements: state everything at the median load
+		const typical = median(references);
+		const toTypical = typical / kernelReference;
 		const cpu = cpus();
 		const record: CalibrationRecord = {
 			kind: 'loadline-calibration',
@@ -203,16 +217,15 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				node: process.version,
 				platform: `${platform()} ${process.arch}`,
 				date: new Date().toISOString(),
-				// at the time the kernel and decode speeds were measured; runs carry their own reference for load
-				coreSpeed,
-				referenceNs: kernelReference
+				coreSpeed: REFERENCE_NS_PER_UPDATE / typical,
+				referenceNs: typical
 			},
 			plan,
 			features,
 			seeds,
 			durationSeconds: elapsed(),
-			kernel,
-			decode,
+			kernel: kernel.map((p) => ({ ...p, nsPerUpdate: p.nsPerUpdate * toTypical })),
+			decode: { binaryMBps: decode.binaryMBps / toTypical, textMBps: decode.textMBps / toTypical, gunzipMBps: decode.gunzipMBps / toTypical },
 			runs,
 			notes
 		};
