@@ -86,7 +86,7 @@ const INFORMATIVE_PER_ROW = 10;
 /** smallest share of rows an informative feature appears in */
 const MIN_INFORMATIVE_SHARE = 0.01;
 /** rows of the pre-sample that sets the label threshold */
-const PRESAMPLE_ROWS = 20_000;
+const PRESAMPLE_ROWS = 50_000;
 /** draws of distinct popular features before filling a row uniformly */
 const MAX_DRAW_ROUNDS = 16;
 
@@ -294,7 +294,6 @@ export function generateRows(opts: Partial<GenerateOptions>): SparseRows {
 	let indices = new Uint32Array(cap);
 	let values = o.values === 'real' ? new Float32Array(cap) : null;
 	let at = 0;
-	let d = 0;
 	for (let i = 0; i < o.rows; i++) {
 		labels[i] = src.next();
 		const len = src.length;
@@ -313,9 +312,8 @@ export function generateRows(opts: Partial<GenerateOptions>): SparseRows {
 		if (values) for (let j = 0; j < len; j++) values[at + j] = src.values[j];
 		at += len;
 		rowPtr[i + 1] = at;
-		if (src.indices[len - 1] + 1 > d) d = src.indices[len - 1] + 1;
 	}
-	return { n: o.rows, d: Math.max(d, o.features), labels, rowPtr, indices: indices.slice(0, at), values: values ? values.slice(0, at) : null };
+	return { n: o.rows, d: o.features, labels, rowPtr, indices: indices.slice(0, at), values: values ? values.slice(0, at) : null };
 }
 
 /**
@@ -350,7 +348,6 @@ export async function generateToFile(
 		throw err;
 	}
 	await sink.close();
-	stats.allOnes = !real;
 	const { size } = await stat(out);
 	return stats.finish(size, format, o.values);
 }
