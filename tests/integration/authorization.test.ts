@@ -69,7 +69,40 @@ const cases: Case[] = [
 		method: 'DELETE',
 		path: async (c) => `/api/projects/${await c.freshProject()}`,
 		expect: { signedOut: 401, viewer: 403, editor: 403, admin: 204, owner: 204, outsider: 404 }
-	}
+	},
+	// --- teams that pay ---
+	{ route: '/pricing', method: 'GET', path: () => '/pricing', expect: { signedOut: 200, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
+	{ route: '/settings', method: 'GET', path: () => '/settings', expect: { signedOut: 303, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
+	{
+		route: '/settings',
+		method: 'POST',
+		path: () => '/settings?/save',
+		form: () => ({ calibrationMail: 'on' }),
+		expect: { signedOut: 303, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 }
+	},
+	{ route: '/teams/[teamId]/billing', method: 'GET', path: (c) => `/teams/${c.teamId}/billing`, expect: page(200) },
+	{
+		// runs before the invite case: the owner's subscription lifts the Free member limit the invitations below would reach
+		route: '/teams/[teamId]/billing',
+		method: 'POST',
+		path: (c) => `/teams/${c.teamId}/billing?/subscribe`,
+		form: () => ({ cardToken: 'tok_visa' }),
+		expect: { signedOut: 303, viewer: 403, editor: 403, admin: 403, owner: 200, outsider: 404 }
+	},
+	{ route: '/teams/[teamId]/members', method: 'GET', path: (c) => `/teams/${c.teamId}/members`, expect: page(200) },
+	{
+		route: '/teams/[teamId]/members',
+		method: 'POST',
+		path: (c) => `/teams/${c.teamId}/members?/invite`,
+		form: () => ({ email: `invitee-${Date.now()}-${n++}@example.org`, role: 'viewer' }),
+		expect: { signedOut: 303, viewer: 403, editor: 403, admin: 200, owner: 200, outsider: 404 }
+	},
+	// an unknown invitation token: a clear page for anyone, and accepting it needs a session first
+	{ route: '/invite/[token]', method: 'GET', path: () => '/invite/no-such-token', expect: { signedOut: 200, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
+	{ route: '/invite/[token]', method: 'POST', path: () => '/invite/no-such-token?/accept', form: () => ({}), expect: { signedOut: 303, viewer: 404, editor: 404, admin: 404, owner: 404, outsider: 404 } },
+	// Stripe authenticates by signature, not session: unsigned calls are refused for every caller
+	{ route: '/api/billing/webhook', method: 'POST', path: () => '/api/billing/webhook', body: () => ({ id: 'evt_unsigned' }), expect: { signedOut: 400, viewer: 400, editor: 400, admin: 400, owner: 400, outsider: 400 } }
+	// --- end teams that pay ---
 ];
 
 const cookies = {} as Record<Caller, string | null>;

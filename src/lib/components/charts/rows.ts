@@ -30,3 +30,18 @@ export function toRangeRows(strategies: StrategyEstimate[]): RangeRow[] {
 			};
 		});
 }
+
+/** About `count` ticks spread evenly in log space across a domain (log axes otherwise crowd their labels). */
+export function logTicks([lo, hi]: number[], count = 5): number[] {
+	if (!(lo > 0) || !(hi > lo)) return [lo];
+	const a = Math.log10(lo);
+	const step = (Math.log10(hi) - a) / (count - 1);
+	return Array.from({ length: count }, (_, i) => 10 ** (a + i * step));
+}
+
+/** Durations worth labelling on a time axis, inside a domain. */
+const NICE_SECONDS = [1, 10, 60, 600, 3600, 6 * 3600, 86_400, 7 * 86_400, 30 * 86_400, 365 * 86_400, 3650 * 86_400];
+export function timeTicks([lo, hi]: number[]): number[] {
+	const nice = NICE_SECONDS.filter((s) => s >= lo && s <= hi);
+	return nice.length >= 2 ? nice : logTicks([lo, hi], 4);
+}
