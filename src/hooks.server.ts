@@ -2,6 +2,7 @@ import { json, type Handle } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { handle as authHandle } from './auth.js';
 import { errorBody } from '$lib/server/http.js';
+import * as ratelimit from '$lib/server/ratelimit.js';
 
 const UNSAFE = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
@@ -18,6 +19,18 @@ const apiOrigin: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
+/** Auth.js's own sign-in endpoint sends mail too, so it shares the sign-in page's rate limit. */
+const signInLimit: Handle = async ({ event, resolve }) => {
+	if (event.request.method === 'POST' && event.url.pathname.startsWith('/auth/signin/')) {
+		const email = (await event.request.clone().formData().catch(() => null))?.get('email');
+		if (typeof email === 'string' && email) {
+			const refusal = await ratelimit.signInRefusal(email, event);
+			if (refusal) return new Response(refusal, { status: 429, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+		}
+	}
+	return resolve(event);
+};
+
 const securityHeaders: Handle = async ({ event, resolve }) => {
 	const response = await resolve(event);
 	response.headers.set('X-Frame-Options', 'DENY');
@@ -26,4 +39,4 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(apiOrigin, authHandle, securityHeaders);
+export const handle = sequence(apiOrigin, signInLimit, authHandle, securityHeaders);

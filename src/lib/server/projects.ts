@@ -4,6 +4,7 @@ import { db } from './db/index.js';
 import { projects, users } from './db/schema.js';
 import { ApiError } from './http.js';
 import type { ProjectCreate, ProjectUpdate } from '$lib/schemas/project.js';
+import * as limits from './billing/limits.js';
 
 const columns = {
 	id: projects.id,
@@ -34,6 +35,7 @@ function isUniqueViolation(e: unknown): boolean {
 }
 
 export async function create(teamId: string, userId: string, input: ProjectCreate) {
+	await limits.assert(teamId, 'projects', 'name');
 	try {
 		const [row] = await db.insert(projects).values({ teamId, createdBy: userId, name: input.name, description: input.description }).returning({ id: projects.id });
 		return (await get(row.id))!;
