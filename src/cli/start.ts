@@ -11,7 +11,7 @@ import { stopCluster } from '../lib/server/db/cluster.js';
 import { createDb } from '../lib/server/db/client.js';
 import { seedDemo, DEMO_EMAIL } from '../lib/server/seed.js';
 import { startFakeStripe, type FakeStripe } from './fake-stripe.js';
-import { buildIfStale, root, serveApp, startMaildev } from './services.js';
+import { buildIfStale, root, serveApp, startMaildev, startWorker } from './services.js';
 
 const port = Number(process.env.PORT ?? 5173);
 const smtpPort = Number(process.env.MAIL_SMTP_PORT ?? 1025);
@@ -67,11 +67,18 @@ try {
 		console.error(`web server exited (${code}); stopping.`);
 		shutdown(1);
 	});
+	// the calibration and upload worker, on the same database (more may run: `npm run worker`)
+	const worker = startWorker({ DATABASE_URL: database.url });
+	children.push(worker);
+	worker.on('exit', (code) => {
+		if (code !== null && code !== 0) console.error(`worker exited (${code}); calibrations and uploads wait until one runs (npm run worker).`);
+	});
 
 	console.log(`
 Loadline is running.
   App:         http://127.0.0.1:${port}
   Database:    ${database.url}${database.dataDir ? ` (cluster in ${database.dataDir})` : ''}
+  Worker:      calibrations and sample uploads (pid ${worker.pid})
   Fake inbox:  ${external ? `real SMTP at ${process.env.SMTP_URL}` : `http://127.0.0.1:${inboxPort}  (SMTP on 127.0.0.1:${smtpPort})`}
   Fake Stripe: ${fakeStripe ? `${fakeStripe.url}  (in memory; webhooks to /api/billing/webhook, dev signing secret unless STRIPE_WEBHOOK_SECRET)` : 'real Stripe (STRIPE_SECRET_KEY)'}
   Demo data:   ${seeded.created ? 'created' : 'already present'}

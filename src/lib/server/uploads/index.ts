@@ -1,0 +1,96 @@
+/** Dataset samples for the web app: receive to disk, list, read; the worker parses (uploads/parse-job.ts). */
+import { randomUUID } from 'node:crypto';
+import { mkdir } from 'node:fs/promises';
+import { join } from 'node:path';
+import { and, desc, eq } from 'drizzle-orm';
+import { env } from '$env/dynamic/private';
+import { db } from '../db/index.js';
+import { uploads, users, type Upload } from '../db/schema.js';
+import { ApiError } from '../http.js';
+import * as jobs from '../jobs/index.js';
+import { QUEUE_PARSE_UPLOAD } from '../jobs/config.js';
+import type { UploadParams } from '$lib/schemas/upload.js';
+import { BAD_LINE_SHARE, formatLimit, uploadDir, uploadLimitBytes } from './config.js';
+import { receive, UploadError } from './receive.js';
+import type { SampleProfile } from './parse-sample.js';
+
+export { BAD_LINE_SHARE, formatLimit };
+
+export const limitBytes = () => uploadLimitBytes(env);
+
+export async function list(teamId: string) {
+	return db
+		.select({ id: uploads.id, fileName: uploads.fileName, kind: uploads.kind, gzip: uploads.gzip, bytes: uploads.bytes, status: uploads.status, error: uploads.error, createdAt: uploads.createdAt, createdBy: users.email })
+		.from(uploads)
+		.leftJoin(users, eq(users.id, uploads.createdBy))
+		.where(eq(uploads.teamId, teamId))
+		.orderBy(desc(uploads.createdAt))
+		.limit(200);
+}
+
+export async function get(id: string): Promise<Upload | null> {
+	const rows = await db.select().from(uploads).where(eq(uploads.id, id)).limit(1);
+	return rows[0] ?? null;
+}
+
+export async function getInTeam(id: string, teamId: string): Promise<Upload | null> {
+	const rows = await db.select().from(uploads).where(and(eq(uploads.id, id), eq(uploads.teamId, teamId))).limit(1);
+	return rows[0] ?? null;
+}
+
+/** Store the body at <upload dir>/<team>/<new id> (never a name from the client), then queue it for parsing. */
+export async function create(teamId: string, userId: string, params: UploadParams, request: Request): Promise<Upload> {
+	const limit = limitBytes();
+	const declared = Number(request.headers.get('content-length') ?? NaN);
+	if (declared > limit) throw new ApiError(413, 'too_large', `The file is larger than the upload limit of ${formatLimit(limit)}.`, { file: `at most ${formatLimit(limit)}` });
+	const id = randomUUID();
+	const dir = join(uploadDir(env), teamId);
+	await mkdir(dir, { recursive: true, mode: 0o750 });
+	let got;
+	try {
+		got = await receive(request.body, join(dir, id), limit);
+	} catch (err) {
+		if (err instanceof UploadError) throw new ApiError(err.status, err.code, err.message, { file: err.message });
+		throw err;
+	}
+	const [row] = await db
+		.insert(uploads)
+		.values({ id, teamId, fileName: params.fileName, kind: params.kind, labelColumn: params.kind === 'csv' ? params.labelColumn : null, gzip: got.gzip, bytes: got.bytes, storedPath: `${teamId}/${id}`, createdBy: userId })
+		.returning();
+	await jobs.send(QUEUE_PARSE_UPLOAD, { uploadId: row.id });
+	return row;
+}
+
+/** The dataset fields a plan takes from a ready sample (rows are the full dataset's, asked for separately). */
+export function planFields(u: Upload) {
+	const p = u.profile as Omit<SampleProfile, 'badLines'> | null;
+	if (u.status !== 'ready' || !p) return null;
+	return {
+		features: p.maxFeature,
+		nnzPerRow: Number(p.nnzMean.toPrecision(4)),
+		positiveFraction: Number(p.positiveFraction.toPrecision(4)),
+		valueKind: p.valueKind,
+		format: 'text' as const,
+		compressed: u.gzip,
+		bytesPerRow: Number(p.bytesPerRow.toPrecision(4))
+	};
+}
+
+export function view(u: Upload) {
+	return {
+		id: u.id,
+		teamId: u.teamId,
+		fileName: u.fileName,
+		kind: u.kind,
+		labelColumn: u.labelColumn,
+		gzip: u.gzip,
+		bytes: u.bytes,
+		status: u.status,
+		error: u.error,
+		profile: u.profile,
+		badLines: u.badLines ?? [],
+		planFields: planFields(u),
+		createdAt: u.createdAt,
+		updatedAt: u.updatedAt
+	};
+}
