@@ -1,18 +1,19 @@
 /**
  * Block files for block minimization: one sequential pass splits a binary row file into
  * consecutive blocks that each fit a byte budget in RAM, written as raw typed arrays,
- * optionally deflated with node:zlib (less disk traffic for more CPU, as in Yu et al., KDD 2010).
+ * optionally compressed with node:zlib (less disk traffic for more CPU, as in Yu et al., KDD 2010).
  * Block file layout (little-endian): f64 n, f64 nnz, f64 hasValues, i8 labels × n padded to 8,
- * f64 rowPtr × (n+1), u32 indices × nnz, f32 values × nnz (when hasValues).
+ * f64 rowPtr × (n+1), u32 indices × nnz, f32 values × nnz (when hasValues); compressed blocks
+ * hold the same bytes as gzip members, one per section.
  */
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { closeSync, mkdtempSync, openSync, readFileSync, rmSync, writeSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { deflateSync, inflateSync } from 'node:zlib';
+import { gunzipSync, gzipSync } from 'node:zlib';
 import type { SparseRows } from '../types.js';
-import { readBinaryChunks } from '../data/binary.js';
+import { readBinaryChunks, readBinaryHeader } from '../data/binary.js';
 import { Throttle } from '../data/throttle.js';
-import { joinRows, rowsBytes, sliceRows, workingSetBytes } from './rows.js';
+import { sliceRows, workingSetBytes } from './rows.js';
 
 export interface BlockFile {
 	path: string;
@@ -37,24 +38,44 @@ export interface BlockSet {
 
 const pad8 = (x: number) => (x + 7) & ~7;
 
-function encodeBlock(rows: SparseRows): Uint8Array {
-	const nnz = rows.rowPtr[rows.n];
-	const labelBytes = pad8(rows.n);
-	const total = 24 + labelBytes + 8 * (rows.n + 1) + 4 * nnz + (rows.values ? 4 * nnz : 0);
-	const buf = new Uint8Array(total);
-	const head = new Float64Array(buf.buffer, 0, 3);
-	head[0] = rows.n;
-	head[1] = nnz;
-	head[2] = rows.values ? 1 : 0;
-	let p = 24;
-	buf.set(new Uint8Array(rows.labels.buffer, rows.labels.byteOffset, rows.n), p);
-	p += labelBytes;
-	new Float64Array(buf.buffer, p, rows.n + 1).set(rows.rowPtr);
-	p += 8 * (rows.n + 1);
-	new Uint32Array(buf.buffer, p, nnz).set(rows.indices.subarray(0, nnz));
-	p += 4 * nnz;
-	if (rows.values) new Float32Array(buf.buffer, p, nnz).set(rows.values.subarray(0, nnz));
-	return buf;
+/**
+ * Write the rows of `parts` as one block file, section by section, so the only extra RAM is one
+ * part's row pointers; compressed blocks are one gzip member per section (gunzip joins them).
+ */
+function writeBlock(path: string, parts: SparseRows[], real: boolean, compress: boolean): { n: number; nnz: number; diskBytes: number } {
+	let n = 0;
+	let nnz = 0;
+	for (const p of parts) {
+		n += p.n;
+		nnz += p.rowPtr[p.n];
+	}
+	const fd = openSync(path, 'w');
+	let diskBytes = 0;
+	const put = (bytes: Uint8Array) => {
+		const out = compress ? gzipSync(bytes, { level: 1 }) : bytes;
+		let done = 0;
+		while (done < out.length) done += writeSync(fd, out, done, out.length - done);
+		diskBytes += out.length;
+	};
+	const view = (a: ArrayBufferView) => new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
+	try {
+		put(view(Float64Array.of(n, nnz, real ? 1 : 0)));
+		for (const p of parts) put(view(p.labels.subarray(0, p.n)));
+		if (pad8(n) > n) put(new Uint8Array(pad8(n) - n));
+		put(view(Float64Array.of(0)));
+		let offset = 0;
+		for (const p of parts) {
+			const ptr = new Float64Array(p.n);
+			for (let i = 0; i < p.n; i++) ptr[i] = offset + p.rowPtr[i + 1];
+			offset += p.rowPtr[p.n];
+			put(view(ptr));
+		}
+		for (const p of parts) put(view(p.indices.subarray(p.rowPtr[0], p.rowPtr[p.n])));
+		if (real) for (const p of parts) put(view(p.values ? p.values.subarray(p.rowPtr[0], p.rowPtr[p.n]) : new Float32Array(p.rowPtr[p.n]).fill(1)));
+	} finally {
+		closeSync(fd);
+	}
+	return { n, nnz, diskBytes };
 }
 
 function decodeBlock(raw: Uint8Array, d: number): SparseRows {
@@ -82,7 +103,7 @@ export async function prepareBlocks(
 	data: string,
 	d: number,
 	blockBudget: number,
-	opts: { compress: boolean; throttle: Throttle; workDir?: string; diskMBps?: number }
+	opts: { compress: boolean; throttle: Throttle; workDir?: string; diskMBps?: number; chunkBytes?: number }
 ): Promise<BlockSet> {
 	const owned = opts.workDir === undefined;
 	const dir = opts.workDir ?? mkdtempSync(join(tmpdir(), 'loadline-blocks-'));
@@ -92,24 +113,22 @@ export async function prepareBlocks(
 	let pendingNnz = 0;
 	let real = false;
 	let next = 0;
+	const header = await readBinaryHeader(data);
+	real = header.valueKind === 'real';
 	const flush = async () => {
 		if (pendingN === 0) return;
-		const rows = pending.length === 1 ? pending[0] : joinRows(pending, d);
-		const bytes = encodeBlock(rows);
-		const out = opts.compress ? deflateSync(bytes, { level: 1 }) : bytes;
 		const path = join(dir, `block-${blocks.length}.bin`);
-		await opts.throttle.take(out.length);
-		writeFileSync(path, out);
-		blocks.push({ path, start: next, n: rows.n, nnz: rows.rowPtr[rows.n], diskBytes: out.length, memoryBytes: rowsBytes(rows) });
-		next += rows.n;
+		const b = writeBlock(path, pending, real, opts.compress);
+		await opts.throttle.take(b.diskBytes);
+		blocks.push({ path, start: next, n: b.n, nnz: b.nnz, diskBytes: b.diskBytes, memoryBytes: workingSetBytes(b.n, b.nnz, real) });
+		next += b.n;
 		pending = [];
 		pendingN = 0;
 		pendingNnz = 0;
 	};
 	// the reader throttles its own reads at the same rate
-	for await (const chunk of readBinaryChunks(data, { throttleMBps: opts.diskMBps })) {
+	for await (const chunk of readBinaryChunks(data, { throttleMBps: opts.diskMBps, chunkBytes: opts.chunkBytes })) {
 		const rows = chunk.rows;
-		real = rows.values !== null;
 		let from = 0;
 		while (from < rows.n) {
 			// take as many rows of this chunk as still fit the block
@@ -143,6 +162,6 @@ export async function prepareBlocks(
 export async function loadBlock(set: BlockSet, b: BlockFile, d: number, throttle: Throttle): Promise<SparseRows> {
 	await throttle.take(b.diskBytes);
 	const raw = readFileSync(b.path);
-	const bytes = set.compress ? inflateSync(raw) : new Uint8Array(raw.buffer, raw.byteOffset, raw.byteLength);
+	const bytes = set.compress ? gunzipSync(raw) : new Uint8Array(raw.buffer, raw.byteOffset, raw.byteLength);
 	return decodeBlock(bytes, d);
 }

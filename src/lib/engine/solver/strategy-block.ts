@@ -41,12 +41,14 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 	const { n, d } = h;
 	const logistic = o.loss === 'logistic';
 	const state = stateBytes(n, d, logistic, true) + (selective ? n : 12 * n);
-	const free = o.memoryBytes - state;
+	// the sequential reader's two buffers (one read ahead) are part of the budget
+	const chunkBytes = Math.max(64 * 1024, Math.min(8 << 20, Math.floor(o.memoryBytes / 32)));
+	const free = o.memoryBytes - state - 2 * chunkBytes;
 	// selective: block + cache are joined into one working set, so they get half of what is left
 	const blockBudget = selective ? (free / 2) * (1 - o.cacheFraction) : o.compress ? free / 2 : free;
 	const cacheBudget = selective ? (free / 2) * o.cacheFraction : 0;
 	if (blockBudget < MIN_BLOCK_BYTES) {
-		throw new OptionError(`memoryBytes: ${o.memoryBytes} bytes leave ${Math.max(0, Math.floor(blockBudget))} for a block after w, α and the margin log (${state} bytes); need at least ${MIN_BLOCK_BYTES}`);
+		throw new OptionError(`memoryBytes: ${o.memoryBytes} bytes leave ${Math.max(0, Math.floor(blockBudget))} for a block after w, α, the margin log and read buffers (${state + 2 * chunkBytes} bytes); need at least ${MIN_BLOCK_BYTES}`);
 	}
 	const throttle = new Throttle(o.diskMBps);
 	const rng = seededRng(o.seed);
@@ -56,7 +58,9 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 	const margins = new Float64Array(n);
 	meter.hold(state);
 
-	const set: BlockSet = await meter.read(() => prepareBlocks(o.data, d, blockBudget, { compress: o.compress, throttle, workDir: o.workDir, diskMBps: o.diskMBps }));
+	// preparation holds the rows of one block, the reader's buffers and one section being written
+	meter.hold(state + blockBudget + 2 * chunkBytes);
+	const set: BlockSet = await meter.read(() => prepareBlocks(o.data, d, blockBudget, { compress: o.compress, throttle, workDir: o.workDir, diskMBps: o.diskMBps, chunkBytes }));
 	meter.passes = 1;
 	try {
 		let visits = 0;

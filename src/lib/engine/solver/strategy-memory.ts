@@ -1,6 +1,7 @@
 /**
  * memory strategy: load the whole binary row file (one pass), then dual coordinate descent with
- * shrinking in RAM (solve-rows.ts). Counted memory: the rows as loaded + w + α (+ C − α for logistic).
+ * shrinking in RAM (solve-rows.ts). Counted memory: the rows as loaded + w + α (+ C − α for logistic)
+ * + the loader's read buffers.
  */
 import type { TrainReport } from '../types.js';
 import { loadBinary, readBinaryHeader } from '../data/binary.js';
@@ -13,9 +14,11 @@ import { workingSetBytes } from './rows.js';
 export async function trainMemory(o: ResolvedOptions): Promise<TrainReport> {
 	const meter = new Meter();
 	const h = await readBinaryHeader(o.data);
-	const need = workingSetBytes(h.n, h.nnz, h.valueKind === 'real') + stateBytes(h.n, h.d, o.loss === 'logistic', false);
+	// the loader's two read buffers (one read ahead) count too
+	const chunkBytes = 8 << 20;
+	const need = workingSetBytes(h.n, h.nnz, h.valueKind === 'real') + stateBytes(h.n, h.d, o.loss === 'logistic', false) + 2 * chunkBytes;
 	if (need > o.memoryBytes) throw new OptionError(`memoryBytes: the memory strategy needs ${need} bytes for ${h.n} rows, the budget is ${o.memoryBytes}`);
-	const rows = await meter.read(() => loadBinary(o.data, { throttleMBps: o.diskMBps }));
+	const rows = await meter.read(() => loadBinary(o.data, { throttleMBps: o.diskMBps, chunkBytes }));
 	meter.passes = 1;
 	meter.exampleReads = rows.n;
 	meter.hold(need);
