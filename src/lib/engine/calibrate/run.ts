@@ -40,6 +40,8 @@ export interface CalibrateOptions {
 	maxFeatures?: number;
 	/** largest rows of one calibration run; default 200 000 */
 	maxRows?: number;
+	/** the target engine's memory budget (a chosen cache size) instead of the plan's usable RAM; default none */
+	memoryBytes?: number;
 	/** folder for the synthetic files; default a fresh folder under the OS temp dir, removed at the end */
 	workDir?: string;
 	onProgress?: (p: CalibrationProgress) => void;
@@ -127,7 +129,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			const share = ((budgetSeconds - fixed) * WEIGHTS[s]) / weightSum;
 			const started = elapsed();
 			const referenceNs = reference();
-			const targetFraction = budgetShape(plan, s, ds.rows).cacheFraction;
+			const targetFraction = budgetShape(plan, s, ds.rows, opts.memoryBytes).cacheFraction;
 			const f1 = s === 'memory' ? 1 : Math.min(1, Math.max(MIN_FRACTION, targetFraction));
 			const f2 = s === 'memory' ? 1 : f1 < 1 ? Math.min(1, f1 * 2) : 0.5;
 			const bytesPerRowRam = rowsInRamBytes(1000, k, ds.valueKind) / 1000;

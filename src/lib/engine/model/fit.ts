@@ -117,12 +117,12 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: Str
 	const b = boundsFor(strategy);
 	const xs = runs.map(features);
 	const k = rec.plan.dataset.nnzPerRow;
-	// kernel cost at the machine load of each run: scaled by the reference kernel then and at kernel time
+	// runs are taken as they ran: a short reference measurement before them tracks the machine's load worse than
+	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
 	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
-	const load = (r: CalibrationRun) => r.referenceNs / rec.machine.referenceNs;
-	const computeModel = runs.map((r) => r.updates * tKernel * load(r));
+	const computeModel = runs.map((r) => r.updates * tKernel);
 	const costRatio = median(runs.map((r, i) => r.computeSeconds / computeModel[i]));
-	const implied = (r: CalibrationRun) => ((r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds)) * load(r);
+	const implied = (r: CalibrationRun) => (r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds);
 	const free = runs.filter((r) => r.diskMBps === null);
 	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
 	const throttled = runs.filter((r) => r.diskMBps !== null && r.diskMBps * 1e6 < decodeBps);

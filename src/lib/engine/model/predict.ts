@@ -48,6 +48,7 @@ interface Context {
 	diskBps: number;
 	binBytes: number;
 	usable: number;
+	memoryBytes: number | undefined;
 	tUpdate: number;
 	widening: number;
 	conversion: { seconds: number; passes: number };
@@ -69,13 +70,13 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const m = plan.machine;
 	let feasible = true;
 	let reason: string | null = null;
-	const shape = budgetShape(plan, s, rows);
+	const shape = budgetShape(plan, s, rows, ctx.memoryBytes);
 	const { state, rowsRam, cacheFraction } = shape;
 	let peak: number;
 	if (s === 'memory') {
 		const required = rowsRam + state + RUNTIME_BYTES;
 		peak = required - RUNTIME_BYTES;
-		if (required > ctx.usable) {
+		if (ctx.memoryBytes !== undefined ? peak > ctx.memoryBytes : required > ctx.usable) {
 			feasible = false;
 			reason = `needs ${formatBytes(required)} (data ${formatBytes(rowsRam)}, weights and dual variables ${formatBytes(state)}, runtime ${formatBytes(RUNTIME_BYTES)}), machine has ${formatBytes(ctx.usable)} usable of ${m.ramGiB} GiB`;
 		}
@@ -160,7 +161,12 @@ function outside(e: StrategyEstimate, f: StrategyFit): string[] {
 }
 
 /** Estimates for every strategy of a plan, from a calibration record (fitted once, cached). */
-export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel): Estimate {
+export interface PredictOptions {
+	/** the engine's memory budget in bytes (a chosen cache size), instead of the machine's usable RAM minus the runtime */
+	memoryBytes?: number;
+}
+
+export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel, opts: PredictOptions = {}): Estimate {
 	const model = 'kernel' in calibration && 'strategies' in calibration ? (calibration as FittedModel) : fitModel(calibration as CalibrationRecord);
 	const rec = model.record;
 	const ds = plan.dataset;
@@ -180,7 +186,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		cpuScale,
 		diskBps: plan.machine.diskMBps * 1e6,
 		binBytes,
-		usable: usableRamBytes(plan.machine.ramGiB),
+		usable: opts.memoryBytes !== undefined ? opts.memoryBytes + RUNTIME_BYTES : usableRamBytes(plan.machine.ramGiB),
+		memoryBytes: opts.memoryBytes,
 		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * 1e-9 * cpuScale,
 		widening,
 		conversion: conversion(plan, rec, rows, cpuScale, binBytes)

@@ -21,9 +21,10 @@ export interface BudgetShape {
 	cacheFraction: number;
 }
 
-export function budgetShape(plan: Plan, strategy: StrategyName, rows: number): BudgetShape {
+/** `memoryBytes`, when given, is the engine's budget itself (a chosen cache size) instead of usable RAM minus the runtime. */
+export function budgetShape(plan: Plan, strategy: StrategyName, rows: number, memoryBytes?: number): BudgetShape {
 	const ds = plan.dataset;
-	const budget = Math.max(0, usableRamBytes(plan.machine.ramGiB) - RUNTIME_BYTES);
+	const budget = memoryBytes ?? Math.max(0, usableRamBytes(plan.machine.ramGiB) - RUNTIME_BYTES);
 	const state = engineStateBytes(strategy, rows, ds.features, plan.training.loss === 'logistic', budget);
 	const rowsRam = rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind);
 	return { budget, state, rowsRam, cacheFraction: Math.min(1, Math.max(1, budget - state) / rowsRam) };

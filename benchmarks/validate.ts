@@ -1,0 +1,157 @@
+/**
+ * Validation of the capacity model: real training runs at full size under emulated RAM and disk
+ * limits, against the estimate made from a calibration alone (the calibration never sees the job's
+ * own data or its full row count), and against a naive baseline: bytes ÷ disk speed × a fixed pass count.
+ *
+ * Run: npx tsx benchmarks/validate.ts [--jobs 1,2,…] [--scale 1] [--calibration-seconds 30] [--out benchmarks/results/validate.md]
+ * --scale multiplies every job's rows (e.g. 0.5 for a reduced suite). Data goes to benchmarks/data/ (git-ignored).
+ * Prints and writes a markdown report with machine, date, command, the table and the error summary.
+ */
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { cpus, totalmem } from 'node:os';
+import { join } from 'node:path';
+import { parseArgs } from 'node:util';
+import type { Loss, StrategyName, ValueKind } from '../src/lib/engine/types.js';
+import type { Plan } from '../src/lib/schemas/plan.js';
+import { generateToFile, GENERATE_DEFAULTS } from '../src/lib/engine/data/generate.js';
+import { train } from '../src/lib/engine/solver/train.js';
+import { calibrate } from '../src/lib/engine/calibrate/run.js';
+import { predict } from '../src/lib/engine/model/predict.js';
+import { binaryBytes, rowsInRamBytes } from '../src/lib/engine/model/sizes.js';
+import { budgetForRows } from '../src/lib/engine/model/sizes.js';
+
+/** the baseline's fixed pass count, chosen before any job ran (common practice, no source) */
+const BASELINE_PASSES = 10;
+
+interface Job {
+	id: number;
+	strategy: StrategyName;
+	rows: number;
+	features: number;
+	k: number;
+	p: number;
+	values: ValueKind;
+	loss: Loss;
+	C: number;
+	/** share of the rows the memory budget holds (ignored by memory) */
+	fraction: number;
+	diskMBps: number;
+}
+
+const JOBS: Job[] = [
+	{ id: 1, strategy: 'memory', rows: 200_000, features: 100_000, k: 40, p: 0.3, values: 'real', loss: 'hinge', C: 1, fraction: 1, diskMBps: 500 },
+	{ id: 2, strategy: 'memory', rows: 100_000, features: 500_000, k: 100, p: 0.5, values: 'binary', loss: 'logistic', C: 0.5, fraction: 1, diskMBps: 200 },
+	{ id: 3, strategy: 'memory', rows: 300_000, features: 50_000, k: 20, p: 0.2, values: 'real', loss: 'sqhinge', C: 2, fraction: 1, diskMBps: 1000 },
+	{ id: 4, strategy: 'block', rows: 20_000, features: 100_000, k: 40, p: 0.3, values: 'real', loss: 'hinge', C: 1, fraction: 0.4, diskMBps: 200 },
+	{ id: 5, strategy: 'block', rows: 15_000, features: 50_000, k: 20, p: 0.5, values: 'binary', loss: 'sqhinge', C: 0.5, fraction: 0.25, diskMBps: 500 },
+	{ id: 6, strategy: 'block', rows: 25_000, features: 200_000, k: 30, p: 0.4, values: 'real', loss: 'logistic', C: 1, fraction: 0.5, diskMBps: 400 },
+	{ id: 7, strategy: 'selective', rows: 100_000, features: 100_000, k: 40, p: 0.3, values: 'real', loss: 'hinge', C: 1, fraction: 0.3, diskMBps: 200 },
+	{ id: 8, strategy: 'selective', rows: 60_000, features: 300_000, k: 80, p: 0.5, values: 'binary', loss: 'logistic', C: 1, fraction: 0.5, diskMBps: 100 },
+	{ id: 9, strategy: 'selective', rows: 150_000, features: 50_000, k: 20, p: 0.2, values: 'real', loss: 'sqhinge', C: 4, fraction: 0.2, diskMBps: 300 },
+	{ id: 10, strategy: 'stream', rows: 100_000, features: 100_000, k: 40, p: 0.3, values: 'real', loss: 'hinge', C: 1, fraction: 0.3, diskMBps: 100 },
+	{ id: 11, strategy: 'stream', rows: 200_000, features: 1_000_000, k: 20, p: 0.5, values: 'binary', loss: 'sqhinge', C: 1, fraction: 0.5, diskMBps: 300 },
+	{ id: 12, strategy: 'stream', rows: 60_000, features: 100_000, k: 60, p: 0.4, values: 'real', loss: 'logistic', C: 0.5, fraction: 0.25, diskMBps: 50 },
+	{ id: 13, strategy: 'stream', rows: 150_000, features: 200_000, k: 40, p: 0.3, values: 'real', loss: 'hinge', C: 10, fraction: 0.2, diskMBps: 200 }
+];
+
+const { values: flags } = parseArgs({
+	options: {
+		jobs: { type: 'string' },
+		scale: { type: 'string', default: '1' },
+		'calibration-seconds': { type: 'string', default: '30' },
+		out: { type: 'string', default: 'benchmarks/results/validate.md' }
+	}
+});
+const scale = Number(flags.scale);
+const calSeconds = Number(flags['calibration-seconds']);
+const pick = flags.jobs ? new Set(flags.jobs.split(',').map(Number)) : null;
+const jobs = JOBS.filter((j) => !pick || pick.has(j.id)).map((j) => ({ ...j, rows: Math.max(2000, Math.round(j.rows * scale)) }));
+const dataDir = 'benchmarks/data/validate';
+mkdirSync(dataDir, { recursive: true });
+
+const rel = (pred: number, meas: number) => Math.abs(pred - meas) / meas;
+const median = (xs: number[]) => {
+	const s = [...xs].sort((a, b) => a - b);
+	const m = s.length >> 1;
+	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+};
+
+interface Row {
+	job: Job;
+	budget: number | null;
+	measured: { wall: number; passes: number; hit: number; gap: number };
+	predicted: { p10: number; p50: number; p90: number; passes: number; hit: number };
+	baseline: number;
+	calSeconds: number;
+}
+
+const rows: Row[] = [];
+const started = new Date();
+for (const job of jobs) {
+	const logistic = job.loss === 'logistic';
+	const rowsRam = rowsInRamBytes(job.rows, job.k, job.values);
+	const budget = job.strategy === 'memory' ? null : budgetForRows(job.strategy, job.rows, job.features, logistic, job.fraction * rowsRam);
+	// the plan is this machine with the job's emulated disk; the budget is given as a chosen cache size
+	const plan: Plan = {
+		dataset: { rows: job.rows, features: job.features, nnzPerRow: job.k, positiveFraction: job.p, valueKind: job.values, format: 'binary', compressed: false },
+		machine: { ramGiB: 64, diskMBps: job.diskMBps, diskInterface: 'pcie5x4', cores: cpus().length, coreSpeed: 1 },
+		training: { loss: job.loss, C: job.C, tol: 0.01, cValues: 1, folds: 1 }
+	};
+	const cal = await calibrate(plan, { strategies: [job.strategy], budgetSeconds: calSeconds, memoryBytes: budget ?? undefined, seeds: [11, 12] });
+	const here: Plan = { ...plan, machine: { ...plan.machine, coreSpeed: cal.machine.coreSpeed } };
+	const est = predict(here, cal, { memoryBytes: budget ?? undefined }).strategies[0];
+	const data = join(dataDir, `job${job.id}-${job.rows}.bin`);
+	if (!existsSync(data))
+		await generateToFile({ rows: job.rows, features: job.features, nnz: job.k, positive: job.p, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: job.values, seed: 1 }, data, 'bin');
+	const real = await train({ data, loss: job.loss, C: job.C, tol: 0.01, strategy: job.strategy, seed: 1, memoryBytes: budget ?? undefined, diskMBps: job.diskMBps });
+	const bytes = binaryBytes(job.rows, job.k, job.values);
+	const row: Row = {
+		job,
+		budget,
+		measured: { wall: real.wallSeconds, passes: real.passes, hit: real.cacheHitRate, gap: real.gap },
+		predicted: { p10: est.wallSeconds.p10, p50: est.wallSeconds.p50, p90: est.wallSeconds.p90, passes: est.passes.p50, hit: est.cacheHitRate },
+		baseline: ((bytes / (job.diskMBps * 1e6)) * BASELINE_PASSES),
+		calSeconds: cal.durationSeconds
+	};
+	rows.push(row);
+	console.error(
+		`job ${job.id} ${job.strategy}: measured ${real.wallSeconds.toFixed(1)} s, ${real.passes} passes; predicted ${est.wallSeconds.p50.toFixed(1)} s, ${est.passes.p50.toFixed(1)} passes; baseline ${row.baseline.toFixed(1)} s`
+	);
+}
+
+const f1 = (x: number) => x.toFixed(1);
+const pct = (x: number) => `${(x * 100).toFixed(0)} %`;
+const table = [
+	'| job | strategy | rows | k | d | values | loss | C | budget (share of rows) | disk MB/s | passes meas / pred | hit rate meas / pred | wall s meas | wall s pred p10 / p50 / p90 | error | baseline s | baseline error |',
+	'|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|---|',
+	...rows.map((r) => {
+		const j = r.job;
+		return `| ${j.id} | ${j.strategy} | ${j.rows} | ${j.k} | ${j.features} | ${j.values} | ${j.loss} | ${j.C} | ${r.budget === null ? 'unlimited' : `${(r.budget / 2 ** 20).toFixed(1)} MiB (${j.fraction})`} | ${j.diskMBps} | ${r.measured.passes} / ${f1(r.predicted.passes)} | ${r.measured.hit.toFixed(3)} / ${r.predicted.hit.toFixed(3)} | ${f1(r.measured.wall)} | ${f1(r.predicted.p10)} / ${f1(r.predicted.p50)} / ${f1(r.predicted.p90)} | ${pct(rel(r.predicted.p50, r.measured.wall))} | ${f1(r.baseline)} | ${pct(rel(r.baseline, r.measured.wall))} |`;
+	})
+];
+const errs = rows.map((r) => rel(r.predicted.p50, r.measured.wall));
+const base = rows.map((r) => rel(r.baseline, r.measured.wall));
+const passesOk = rows.filter((r) => Math.abs(r.predicted.passes - r.measured.passes) <= Math.max(1, 0.2 * r.measured.passes)).length;
+const inRange = rows.filter((r) => r.measured.wall >= r.predicted.p10 && r.measured.wall <= r.predicted.p90).length;
+const summary = [
+	`- wall-time error of the model: median ${pct(median(errs))}, worst ${pct(Math.max(...errs))} (targets: median ≤ 15 %, worst ≤ 40 %)`,
+	`- naive baseline (bytes ÷ disk speed × ${BASELINE_PASSES} passes): median ${pct(median(base))}, worst ${pct(Math.max(...base))}; model median / baseline median = ${(median(errs) / median(base)).toFixed(2)} (target ≤ 0.33)`,
+	`- passes within 1 or 20 % (whichever is larger): ${passesOk} of ${rows.length}`,
+	`- measured wall inside the predicted p10–p90: ${inRange} of ${rows.length}`
+];
+const cpu = cpus()[0]?.model?.trim() ?? 'unknown';
+const report = [
+	'# Validation: capacity model against measured jobs',
+	'',
+	`Machine: ${cpu}, ${cpus().length} cores, ${(totalmem() / 2 ** 30).toFixed(1)} GiB RAM, Node ${process.version}. Date: ${started.toISOString()}.`,
+	`Command: \`npx tsx benchmarks/validate.ts${process.argv.slice(2).length ? ' ' + process.argv.slice(2).join(' ') : ''}\` (${((Date.now() - started.getTime()) / 60000).toFixed(1)} min; calibrations ${f1(rows.reduce((a, r) => a + r.calSeconds, 0))} s in total).`,
+	'',
+	'Each job: a calibration of its strategy alone (synthetic data, other seeds, at most the budget above per job), then the estimate for the full job, then the real run with `train` at full size under the same emulated budget and disk throttle.',
+	'',
+	...table,
+	'',
+	...summary,
+	''
+].join('\n');
+console.log(report);
+if (flags.out) writeFileSync(flags.out, report);
