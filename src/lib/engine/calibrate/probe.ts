@@ -70,7 +70,8 @@ function dropCaches(): boolean {
 }
 
 export function guessInterface(mbps: number): DiskInterface {
-	const order: DiskInterface[] = ['hdd', 'sata3', 'pcie3x4', 'pcie4x4', 'pcie5x4'];
+	// a spinning disk cannot be told from a slow SSD by speed alone, so hdd is never guessed
+	const order: DiskInterface[] = ['sata3', 'pcie3x4', 'pcie4x4', 'pcie5x4'];
 	return order.find((i) => LINE_RATES[i].maxMBps >= mbps) ?? 'pcie5x4';
 }
 
