@@ -10,6 +10,7 @@ import * as teams from './teams.js';
 import * as projects from './projects.js';
 import * as plans from './plans.js';
 import * as machines from './machines.js';
+import * as comparisons from './comparisons.js';
 
 export type Need = 'read' | 'edit' | 'manage' | 'own';
 
@@ -84,4 +85,14 @@ export async function machine(event: RequestEvent, machineId: string, need: Need
 	if (!m0 || !m) error(404, { code: 'not_found', message: 'No such machine.' });
 	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
 	return { user: me, team: m, role: m.role, machine: m0 };
+}
+
+/** A saved comparison: only members of its team may open it. */
+export async function comparison(event: RequestEvent, comparisonId: string, need: Need) {
+	const me = await user(event);
+	const c = UUID.test(comparisonId) ? await comparisons.get(comparisonId) : null;
+	const m = c ? await teams.membership(c.teamId, me.id) : null;
+	if (!c || !m) error(404, { code: 'not_found', message: 'No such comparison.' });
+	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
+	return { user: me, team: m, role: m.role, comparison: c };
 }
