@@ -14,7 +14,7 @@
  */
 import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, statSync } from 'node:fs';
-import { cpus } from 'node:os';
+import { cpus, loadavg } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import { generateToFile, type GenerateOptions } from '../src/lib/engine/data/generate.js';
@@ -68,12 +68,12 @@ function liblinear(svm: string, eps: number): { s: number; iters: number } {
 const machine = `${cpus()[0]?.model ?? 'unknown CPU'}, ${cpus().length} cores`;
 const date = new Date().toISOString().slice(0, 10);
 const lines: string[] = [];
-lines.push(`Machine: ${machine}; ${date}; Node ${process.version}. Command: \`npx tsx benchmarks/engine.ts --sets ${flags.sets} --C ${C}\`.`, '');
+lines.push(`Machine: ${machine}; ${date}; Node ${process.version}; 1-minute load average at start ${loadavg()[0].toFixed(1)}. Command: \`npx tsx benchmarks/engine.ts --sets ${flags.sets} --C ${C}\`.`, '');
 
 if (!flags['no-liblinear']) {
 	lines.push(`### In-memory epoch time per nonzero, hinge (L1-loss SVM dual), C = ${C}, against liblinear-train -s 3`, '');
-	lines.push('| data | w size | liblinear #iter | liblinear s/epoch | ours epochs | ours s/epoch (updates) | ns per nonzero, ours / liblinear | ratio | one gap evaluation s (ours) | liblinear load s |');
-	lines.push('|---|---|---|---|---|---|---|---|---|---|');
+	lines.push('| data | w size | liblinear #iter | liblinear s/epoch | ours epochs | ours s/epoch (updates) | ns per nonzero, ours / liblinear | ratio | one gap evaluation s (ours) | liblinear load s | load avg |');
+	lines.push('|---|---|---|---|---|---|---|---|---|---|---|');
 }
 for (const name of flags.sets.split(',')) {
 	if (!SETS[name]) throw new Error(`--sets: unknown set "${name}" (known: ${Object.keys(SETS).join(', ')})`);
@@ -93,7 +93,7 @@ for (const name of flags.sets.split(',')) {
 	const ns = (s: number) => ((s / h.nnz) * 1e9).toFixed(2);
 	const wBytes = h.d * 8;
 	lines.push(
-		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} | ${ours.epochs} | ${ourEpoch.toFixed(4)} | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× | ${ours.gapSeconds.toFixed(4)} | ${(one.s - llEpoch).toFixed(1)} |`
+		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} | ${ours.epochs} | ${ourEpoch.toFixed(4)} | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× | ${ours.gapSeconds.toFixed(4)} | ${(one.s - llEpoch).toFixed(1)} | ${loadavg()[0].toFixed(1)} |`
 	);
 	console.log(lines.join('\n'));
 }
@@ -103,14 +103,14 @@ if (!flags['no-stream']) {
 	const { bin } = await ensure(name);
 	const size = statSync(bin).size;
 	lines.push('', `### Stream strategy on ${name} (${(size / 1e6).toFixed(0)} MB binary rows), hinge, C = ${C}, tol 0.01, max 30 epochs`, '');
-	lines.push('| cache budget | disk throttle | updates | updates/s (trainer) | updates/s (wall) | reader MB/s while training | passes | epochs | cache hit rate | gap | wall s | peak counted MB |');
-	lines.push('|---|---|---|---|---|---|---|---|---|---|---|---|');
+	lines.push('| cache budget | disk throttle | updates | updates/s (trainer) | updates/s (wall) | reader MB/s while training | passes | epochs | cache hit rate | gap | wall s | peak counted MB | load avg |');
+	lines.push('|---|---|---|---|---|---|---|---|---|---|---|---|---|');
 	for (const [fraction, mbps] of [[0.25, undefined], [0.25, 200]] as const) {
 		const memoryBytes = Math.floor(size * fraction) + 64 * 2 ** 20;
 		log(`stream: budget ${memoryBytes}, throttle ${mbps ?? 'none'}`);
 		const r = (await train({ data: bin, loss: 'hinge', C, strategy: 'stream', tol: 0.01, maxEpochs: 30, memoryBytes, diskMBps: mbps })) as StreamReport;
 		lines.push(
-			`| ${(memoryBytes / 1e6).toFixed(0)} MB (cache ${(r.cacheBytes / 1e6).toFixed(0)} MB) | ${mbps ? `${mbps} MB/s` : 'none'} | ${r.updates} | ${(r.updates / r.computeSeconds / 1e6).toFixed(2)} M | ${(r.updates / r.wallSeconds / 1e6).toFixed(2)} M | ${r.readerMBps.toFixed(0)} | ${r.passes} | ${r.epochs.toFixed(1)} | ${r.cacheHitRate.toFixed(3)} | ${r.gap.toExponential(2)} | ${r.wallSeconds.toFixed(1)} | ${(r.peakMemoryBytes / 1e6).toFixed(0)} |`
+			`| ${(memoryBytes / 1e6).toFixed(0)} MB (cache ${(r.cacheBytes / 1e6).toFixed(0)} MB) | ${mbps ? `${mbps} MB/s` : 'none'} | ${r.updates} | ${(r.updates / r.computeSeconds / 1e6).toFixed(2)} M | ${(r.updates / r.wallSeconds / 1e6).toFixed(2)} M | ${r.readerMBps.toFixed(0)} | ${r.passes} | ${r.epochs.toFixed(1)} | ${r.cacheHitRate.toFixed(3)} | ${r.gap.toExponential(2)} | ${r.wallSeconds.toFixed(1)} | ${(r.peakMemoryBytes / 1e6).toFixed(0)} | ${loadavg()[0].toFixed(1)} |`
 		);
 	}
 }
