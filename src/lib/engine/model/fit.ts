@@ -111,6 +111,24 @@ export function kernelNs(kernel: KernelLine[], k: number, d: number): number {
 	return Math.max(1e-3, at(lo) + t * (at(hi) - at(lo)));
 }
 
+/**
+ * compute seconds ≈ fixed + ratio × kernel-predicted seconds: the fixed part (JIT warm-up,
+ * per-run setup) would otherwise inflate the per-update cost of the small runs.
+ */
+function fitCost(model: number[], measured: number[]): { ratio: number; fixed: number } {
+	const top = Math.max(...model);
+	const through0 = () => ({ ratio: measured.reduce((a, y, i) => a + y * model[i], 0) / Math.max(1e-30, model.reduce((a, x) => a + x * x, 0)), fixed: 0 });
+	if (!(top > 0)) return { ratio: 1, fixed: 0 };
+	const f = fitLinear(
+		model.map((x) => [x / top]),
+		measured,
+		[NONNEG]
+	);
+	const ratio = f.coef[1] / top;
+	if (f.coef[0] < 0 || !(ratio > 0)) return through0();
+	return { ratio, fixed: f.coef[0] };
+}
+
 function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: StrategyName): StrategyFit | undefined {
 	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0);
 	if (runs.length === 0) return undefined;
@@ -121,17 +139,18 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: Str
 	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
 	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
 	const computeModel = runs.map((r) => r.updates * tKernel);
-	const costRatio = median(runs.map((r, i) => r.computeSeconds / computeModel[i]));
+	const { ratio: costRatio, fixed: computeFixed } = fitCost(computeModel, runs.map((r) => r.computeSeconds));
 	const implied = (r: CalibrationRun) => (r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds);
 	const free = runs.filter((r) => r.diskMBps === null);
 	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
 	const throttled = runs.filter((r) => r.diskMBps !== null && r.diskMBps * 1e6 < decodeBps);
 	const throttleRatio = throttled.length > 0 ? median(throttled.map((r) => (r.readSeconds * r.diskMBps! * 1e6) / (r.passes * r.bytesOnDisk))) : 1;
-	// wall − read − compute = overhead − overlap × min(read, compute)
+	// wall − read − compute = overhead − overlap × min(read, compute); only stream reads while it trains
+	const scaleMin = Math.max(1e-9, ...runs.map((r) => Math.min(r.readSeconds, r.computeSeconds)));
 	const lap = fitLinear(
-		runs.map((r) => [-Math.min(r.readSeconds, r.computeSeconds)]),
+		runs.map((r) => [-Math.min(r.readSeconds, r.computeSeconds) / scaleMin]),
 		runs.map((r) => r.wallSeconds - r.readSeconds - r.computeSeconds),
-		[[0, 1]]
+		[strategy === 'stream' ? [0, scaleMin] : [0, 0]]
 	);
 	// spread between seeds at the same setting, pooled over settings
 	const groups = new Map<string, number[]>();
@@ -157,8 +176,8 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: Str
 		costRatio: Number.isFinite(costRatio) && costRatio > 0 ? costRatio : 1,
 		decodeBps: Number.isFinite(decodeBps) && decodeBps > 0 ? decodeBps : rec.decode.binaryMBps * 1e6,
 		throttleRatio: Number.isFinite(throttleRatio) ? Math.min(3, Math.max(1, throttleRatio)) : 1,
-		overlap: lap.coef[1],
-		overheadSeconds: Math.max(0, lap.coef[0]),
+		overlap: lap.coef[1] / scaleMin,
+		overheadSeconds: Math.max(0, lap.coef[0]) + computeFixed,
 		seedSpread: dof > 0 ? Math.sqrt(ss / dof) : 0.1,
 		rowsMax: Math.max(...runs.map((r) => r.rows)),
 		fractionRange: [Math.min(...runs.map((r) => r.cacheFraction)), Math.max(...runs.map((r) => r.cacheFraction))],
