@@ -7,6 +7,8 @@ import { readdirSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { client, signIn } from '../helpers/session.js';
 import { addMember, closeDb, makeProject, makeTeam, makeUser } from '../helpers/factories.js';
+import { calibrationFixtures } from '../helpers/plans.js';
+import { examplePlan, planningFixtures } from '../helpers/planning.js';
 
 type Caller = 'signedOut' | 'viewer' | 'editor' | 'admin' | 'owner' | 'outsider';
 const callers: Caller[] = ['signedOut', 'viewer', 'editor', 'admin', 'owner', 'outsider'];
@@ -22,7 +24,7 @@ interface Case {
 	route: string; // the src/routes pattern this case covers
 	method: 'GET' | 'POST' | 'PATCH' | 'DELETE';
 	path: (c: Ctx) => string | Promise<string>;
-	body?: (c: Ctx) => unknown;
+	body?: (c: Ctx) => unknown | Promise<unknown>;
 	form?: (c: Ctx) => Record<string, string>;
 	expect: Record<Caller, number>;
 }
@@ -70,6 +72,73 @@ const cases: Case[] = [
 		path: async (c) => `/api/projects/${await c.freshProject()}`,
 		expect: { signedOut: 401, viewer: 403, editor: 403, admin: 204, owner: 204, outsider: 404 }
 	},
+	// --- planning workspace ---
+	...(() => {
+		const fx = planningFixtures();
+		const api = (member: number) => ({ signedOut: 401, viewer: member, editor: member, admin: member, owner: member, outsider: 404 });
+		const write = (member: number) => ({ ...api(member), viewer: 403 });
+		const editPage = { signedOut: 303, viewer: 403, editor: 200, admin: 200, owner: 200, outsider: 404 };
+		// an empty superforms post is invalid: members who may edit get past the guard to a 400
+		const emptyForm = () => ({ __superform_id: 'x' });
+		const editForm = { signedOut: 303, viewer: 403, editor: 400, admin: 400, owner: 400, outsider: 404 };
+		const ids = (c: Ctx) => fx.get(c.teamId, c.projectId);
+		return [
+			{ route: '/teams/[teamId]/plans/new', method: 'GET', path: (c) => `/teams/${c.teamId}/plans/new?project=${c.projectId}`, expect: editPage },
+			{ route: '/teams/[teamId]/plans/new', method: 'POST', path: (c) => `/teams/${c.teamId}/plans/new?project=${c.projectId}&/save`, form: emptyForm, expect: editForm },
+			{ route: '/teams/[teamId]/plans/[planId]', method: 'GET', path: async (c) => `/teams/${c.teamId}/plans/${(await ids(c)).planIds[0]}`, expect: page(200) },
+			{ route: '/teams/[teamId]/plans/[planId]', method: 'POST', path: async (c) => `/teams/${c.teamId}/plans/${(await ids(c)).planIds[0]}?/save`, form: emptyForm, expect: editForm },
+			{ route: '/teams/[teamId]/compare', method: 'GET', path: async (c) => `/teams/${c.teamId}/compare?plans=${(await ids(c)).planIds.join(',')}`, expect: page(200) },
+			{ route: '/teams/[teamId]/compare/[comparisonId]', method: 'GET', path: async (c) => `/teams/${c.teamId}/compare/${(await ids(c)).comparisonId}`, expect: page(200) },
+			{ route: '/teams/[teamId]/machines', method: 'GET', path: (c) => `/teams/${c.teamId}/machines`, expect: page(200) },
+			{ route: '/api/estimate', method: 'POST', path: () => '/api/estimate', body: (c) => ({ plan: examplePlan(), teamId: c.teamId }), expect: api(200) },
+			{ route: '/api/plans', method: 'GET', path: (c) => `/api/plans?projectId=${c.projectId}`, expect: api(200) },
+			{ route: '/api/plans', method: 'POST', path: () => '/api/plans', body: (c) => ({ projectId: c.projectId, name: `api plan ${n++}`, plan: examplePlan() }), expect: write(201) },
+			{ route: '/api/plans/[id]', method: 'GET', path: async (c) => `/api/plans/${(await ids(c)).planIds[0]}`, expect: api(200) },
+			{ route: '/api/plans/[id]', method: 'PATCH', path: async (c) => `/api/plans/${await fx.freshPlan(c.teamId, c.projectId)}`, body: () => ({ name: `renamed plan ${n++}` }), expect: write(200) },
+			{ route: '/api/plans/[id]', method: 'DELETE', path: async (c) => `/api/plans/${await fx.freshPlan(c.teamId, c.projectId)}`, expect: write(204) },
+			{ route: '/api/machines', method: 'GET', path: (c) => `/api/machines?teamId=${c.teamId}`, expect: api(200) },
+			{
+				route: '/api/machines',
+				method: 'POST',
+				path: () => '/api/machines',
+				body: (c) => ({ teamId: c.teamId, name: `rack box ${n++}`, profile: { ramGiB: 128, diskMBps: 900, diskInterface: 'gbe10', cores: 16, coreSpeed: 1 } }),
+				expect: write(201)
+			},
+			{ route: '/api/machines/[id]', method: 'GET', path: async (c) => `/api/machines/${(await ids(c)).machineId}`, expect: api(200) },
+			{ route: '/api/machines/[id]', method: 'PATCH', path: async (c) => `/api/machines/${(await ids(c)).machineId}`, body: () => ({ retired: false }), expect: write(200) },
+			{ route: '/api/comparisons', method: 'GET', path: (c) => `/api/comparisons?teamId=${c.teamId}`, expect: api(200) },
+			// comparing is a viewer's job too, so viewers may save one
+			{ route: '/api/comparisons', method: 'POST', path: () => '/api/comparisons', body: async (c) => ({ teamId: c.teamId, name: `cmp ${n++}`, planIds: (await ids(c)).planIds }), expect: api(201) },
+			{ route: '/api/comparisons/[id]', method: 'GET', path: async (c) => `/api/comparisons/${(await ids(c)).comparisonId}`, expect: api(200) },
+			{
+				route: '/api/comparisons/[id]',
+				method: 'DELETE',
+				path: async (c) => `/api/comparisons/${await fx.freshComparison(c.teamId, (await ids(c)).planIds)}`,
+				expect: { signedOut: 401, viewer: 403, editor: 403, admin: 204, owner: 204, outsider: 404 }
+			}
+		] satisfies Case[];
+	})(),
+	// --- end planning workspace ---
+	// --- calibration jobs and uploads ---
+	...(() => {
+		const cal = calibrationFixtures();
+		// API routes: 401 signed out, the member status, 404 for another team's member
+		const api = (member: number) => ({ signedOut: 401, viewer: member, editor: member, admin: member, owner: member, outsider: 404 });
+		return [
+			{ route: '/api/plans/[id]/calibrate', method: 'GET', path: async (c) => `/api/plans/${(await cal.get(c.teamId, c.projectId)).planId}/calibrate`, expect: api(200) },
+			// the saved plan is invalid, so members who pass the guard get 400 and no calibration is queued
+			{ route: '/api/plans/[id]/calibrate', method: 'POST', path: async (c) => `/api/plans/${(await cal.get(c.teamId, c.projectId)).brokenPlanId}/calibrate`, body: () => ({}), expect: { ...api(400), viewer: 403 } },
+			{ route: '/api/calibrations/[id]', method: 'GET', path: async (c) => `/api/calibrations/${(await cal.get(c.teamId, c.projectId)).doneJobId}`, expect: api(200) },
+			{ route: '/api/calibrations/[id]/cancel', method: 'POST', path: async (c) => `/api/calibrations/${await cal.queuedJob(c.teamId)}/cancel`, expect: { ...api(200), viewer: 403 } },
+			{ route: '/api/calibrations/[id]/retry', method: 'POST', path: async (c) => `/api/calibrations/${await cal.failedJob(c.teamId)}/retry`, expect: { ...api(202), viewer: 403 } },
+			{ route: '/api/uploads', method: 'GET', path: (c) => `/api/uploads?teamId=${c.teamId}`, expect: api(200) },
+			{ route: '/api/uploads', method: 'POST', path: (c) => `/api/uploads?teamId=${c.teamId}&fileName=rows.svm&kind=svmlight`, body: () => '+1 3:1', expect: { ...api(202), viewer: 403 } },
+			{ route: '/api/uploads/[id]', method: 'GET', path: async (c) => `/api/uploads/${(await cal.get(c.teamId, c.projectId)).uploadId}`, expect: api(200) },
+			{ route: '/teams/[teamId]/uploads', method: 'GET', path: (c) => `/teams/${c.teamId}/uploads`, expect: page(200) },
+			{ route: '/teams/[teamId]/uploads/[uploadId]', method: 'GET', path: async (c) => `/teams/${c.teamId}/uploads/${(await cal.get(c.teamId, c.projectId)).uploadId}`, expect: page(200) },
+		] satisfies Case[];
+	})(),
+	// --- end calibration jobs and uploads ---
 	// --- teams that pay ---
 	{ route: '/pricing', method: 'GET', path: () => '/pricing', expect: { signedOut: 200, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
 	{ route: '/settings', method: 'GET', path: () => '/settings', expect: { signedOut: 303, viewer: 200, editor: 200, admin: 200, owner: 200, outsider: 200 } },
@@ -133,7 +202,7 @@ describe('authorization table', () => {
 				const path = await c.path(ctx);
 				const res = c.form
 					? await call(path, { method: 'POST', body: new URLSearchParams(c.form(ctx)), headers: { 'content-type': 'application/x-www-form-urlencoded', 'x-sveltekit-action': 'true', accept: 'application/json' } })
-					: await call(path, { method: c.method, json: c.body?.(ctx) });
+					: await call(path, { method: c.method, json: await c.body?.(ctx) });
 				let status = res.status;
 				// a form action called as use:enhance does reports redirects and failures inside a JSON envelope
 				if (c.form) {
