@@ -9,7 +9,8 @@
  * - values: binary (1) or real (whole thousandths in (0, 1], so text rows round-trip to f32 exactly);
  * - labels: sign(w·x − t) of a hidden sparse weight vector w with N(0, 1) weights on a few popular
  *   features (in at most half of the rows each, chosen so a row holds about 10 of them on
- *   average, or k/2 when rows are shorter),
+ *   average, or k/2 when rows are shorter; at most 20 000, so flat popularity over very many
+ *   features gives rows with few informative features and labels that are hard to learn),
  *   then each label flipped with probability `noise`. The threshold t is the score quantile of a
  *   separate pre-sample, set so the positive fraction after noise is `positive` in expectation.
  */
@@ -83,12 +84,17 @@ export function resolveGenerateOptions(opts: Partial<GenerateOptions>): Required
 
 /** Target mean count of informative features per row. */
 const INFORMATIVE_PER_ROW = 10;
+/** cap on informative features: with flat popularity over many features more would only add rare, unlearnable weights */
+const MAX_INFORMATIVE = 20_000;
 /** smallest share of rows an informative feature appears in */
 const MIN_INFORMATIVE_SHARE = 0.01;
 /** rows of the pre-sample that sets the label threshold */
 const PRESAMPLE_ROWS = 50_000;
 /** draws of distinct popular features before filling a row uniformly */
 const MAX_DRAW_ROUNDS = 16;
+
+/** no feature has this index: indices stop at 2^32 - 2 */
+const EMPTY_KEY = 0xffffffff;
 
 function gcd(a: number, b: number): number {
 	while (b) [a, b] = [b, a % b];
@@ -110,7 +116,7 @@ class RowSource {
 	private readonly mulA: number;
 	private readonly addB: number;
 	// informative features: open-addressing table index → weight
-	private readonly keys: Int32Array;
+	private readonly keys: Uint32Array;
 	private readonly weights: Float64Array;
 	private readonly mask: number;
 	threshold = 0;
@@ -134,13 +140,13 @@ class RowSource {
 		// structure (permutation and hidden weights) comes from its own stream, shared by all row sources
 		const maxMul = Math.max(1, Math.min(this.d, Math.floor(2 ** 53 / this.d) - 1));
 		let a = 1 + structure.int(maxMul);
-		while (gcd(a, this.d) !== 1) a = a === 1 ? 1 : a - 1;
+		while (gcd(a, this.d) !== 1) a--;
 		this.mulA = a;
 		this.addB = structure.int(this.d);
 		const ranks = this.informativeRanks(structure);
 		let size = 4;
 		while (size < ranks.length * 4) size *= 2;
-		this.keys = new Int32Array(size).fill(-1);
+		this.keys = new Uint32Array(size).fill(EMPTY_KEY);
 		this.weights = new Float64Array(size);
 		this.mask = size - 1;
 		for (const r of ranks) this.insert(this.rankToIndex(r), structure.normal());
@@ -161,12 +167,13 @@ class RowSource {
 		const target = Math.min(INFORMATIVE_PER_ROW, this.k / 2);
 		let first = 1;
 		while (first < this.d && this.k * this.rankMass(first) > 0.5) first++;
+		// rarer features would leave too few examples per weight, unless no feature is that popular (flat popularity)
+		const floor = this.k * this.rankMass(first) >= MIN_INFORMATIVE_SHARE ? MIN_INFORMATIVE_SHARE : 0;
 		let expected = 0;
 		let last = first - 1;
-		while (last < this.d && expected < 2 * target) {
+		while (last < this.d && expected < 2 * target && last - first + 1 < 2 * MAX_INFORMATIVE) {
 			const q = Math.min(1, this.k * this.rankMass(last + 1));
-			// rarer features would leave too few examples per weight (unless nothing is more popular)
-			if (q < MIN_INFORMATIVE_SHARE && last >= first) break;
+			if (q < floor) break;
 			last++;
 			expected += q;
 		}
@@ -190,7 +197,7 @@ class RowSource {
 
 	private slot(index: number): number {
 		let h = (Math.imul(index, 0x9e3779b1) >>> 0) & this.mask;
-		while (this.keys[h] !== -1 && this.keys[h] !== index) h = (h + 1) & this.mask;
+		while (this.keys[h] !== EMPTY_KEY && this.keys[h] !== index) h = (h + 1) & this.mask;
 		return h;
 	}
 

@@ -79,6 +79,14 @@ describe('synthetic generator', () => {
 		expect(Math.max(...s.indices)).toBeLessThan(10_000);
 	});
 
+	it('feature indices above 2^31 stay exact (u32 indices up to 2^32 - 2)', () => {
+		const s = generateRows({ rows: 500, features: 3_000_000_000, nnz: 10, seed: 2 });
+		let high = 0;
+		for (const x of s.indices) if (x >= 2 ** 31) high++;
+		expect(high).toBeGreaterThan(0);
+		expect(Math.max(...s.indices)).toBeLessThan(3_000_000_000);
+	});
+
 	it('nnzSpread 0 gives every row exactly k nonzeros', () => {
 		const s = generateRows({ ...base, rows: 500, nnz: 17, nnzSpread: 0 });
 		for (let i = 0; i < s.n; i++) expect(s.rowPtr[i + 1] - s.rowPtr[i]).toBe(17);
