@@ -65,8 +65,10 @@ export class SvmDualCoordinateDescent implements CoordinateSolver {
 		loss: Loss,
 		C: number,
 		private readonly rng: Rng,
-		private readonly shrinking = true
+		private readonly shrinking = true,
+		startEps = START_EPS
 	) {
+		this.eps = startEps;
 		const { rows } = ws;
 		const t = lossTable(loss, C);
 		this.diag = t.diag;
