@@ -1,0 +1,93 @@
+/** In a real browser: the team pages work under the content security policy (no violations), invite and subscribe by hand. */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser, Page } from 'playwright-core';
+import { launch } from '../helpers/browser.js';
+import { baseUrl, latestMail, linkIn } from '../helpers/session.js';
+import { addMember, closeDb, makeProject, makeTeam, makeUser, unique } from '../helpers/factories.js';
+
+let browser: Browser;
+let close: () => Promise<void>;
+
+beforeAll(async () => {
+	({ browser, close } = await launch());
+});
+afterAll(async () => {
+	await close?.();
+	await closeDb();
+});
+
+/** Collect CSP violations the page reports (the DOM event and the console message Chromium prints). */
+async function watch(page: Page) {
+	const violations: string[] = [];
+	await page.addInitScript(() => {
+		document.addEventListener('securitypolicyviolation', (e) => {
+			(window as unknown as { __csp: string[] }).__csp ??= [];
+			(window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI}`);
+		});
+	});
+	page.on('console', (m) => {
+		if (/Content Security Policy|Refused to/i.test(m.text())) violations.push(m.text());
+	});
+	page.on('pageerror', (e) => violations.push(`page error: ${e.message}`));
+	return async () => [...violations, ...((await page.evaluate(() => (window as unknown as { __csp?: string[] }).__csp ?? [])) as string[])];
+}
+
+async function signInThroughInbox(page: Page, email: string) {
+	await page.goto(`${baseUrl()}/signin`);
+	const before = Date.now();
+	await page.getByLabel('Work e-mail').fill(email);
+	await page.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+	await page.waitForURL(/\/signin\/check-email/);
+	await page.goto(linkIn(await latestMail(email, before)));
+	await page.waitForURL(/\/teams\//);
+}
+
+describe('team pages in the browser', () => {
+	it('shows every main page without a CSP violation, then invites and subscribes through the forms', async () => {
+		const team = await makeTeam(unique('Browser team'));
+		const owner = await makeUser('browser-owner');
+		await addMember(team.id, owner.id, 'owner');
+		const project = await makeProject(team.id);
+		const context = await browser.newContext();
+		const page = await context.newPage();
+		const violations = await watch(page);
+		await signInThroughInbox(page, owner.email!);
+
+		const pages = [
+			[`/teams/${team.id}/projects`, 'Projects'],
+			[`/teams/${team.id}/projects/${project.id}`, project.name],
+			[`/teams/${team.id}/members`, 'Members'],
+			[`/teams/${team.id}/billing`, 'Billing'],
+			['/settings', 'Settings'],
+			['/pricing', 'Pricing'],
+			['/invite/not-a-token', 'This invitation link is not valid']
+		];
+		for (const [path, heading] of pages) {
+			await page.goto(`${baseUrl()}${path}`);
+			await page.getByRole('heading', { name: heading }).first().waitFor();
+			expect(await violations(), path).toEqual([]);
+		}
+
+		// enhanced forms run their scripts under the policy: the result appears without a reload
+		await page.goto(`${baseUrl()}/teams/${team.id}/members`);
+		const invitee = `${unique('invitee')}@example.org`;
+		await page.getByLabel('E-mail').fill(invitee);
+		await page.getByRole('button', { name: 'Send invitation' }).click();
+		await page.getByTestId('invitation-list').getByText(invitee).waitFor();
+		expect(await page.getByRole('status').textContent()).toContain(`Invitation sent to ${invitee}`);
+
+		await page.goto(`${baseUrl()}/teams/${team.id}/billing`);
+		await page.getByRole('button', { name: 'Subscribe' }).click();
+		await expect.poll(() => page.getByTestId('tier').textContent()).toBe('Team');
+		expect(await page.getByTestId('seats').textContent()).toBe('1 × $15.00 per month');
+
+		await page.goto(`${baseUrl()}/settings`);
+		await page.getByLabel('E-mail me when a calibration I started finishes').uncheck();
+		await page.getByRole('button', { name: 'Save settings' }).click();
+		await page.getByText('Settings saved.').waitFor();
+		await page.reload();
+		expect(await page.getByLabel('E-mail me when a calibration I started finishes').isChecked()).toBe(false);
+		expect(await violations()).toEqual([]);
+		await context.close();
+	});
+});
