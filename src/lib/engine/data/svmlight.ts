@@ -7,7 +7,7 @@
  * - finite decimal values that fit a 32-bit float (stored as f32);
  * - `#` starts a comment to the end of the line; blank and comment-only lines are skipped;
  * - `qid:<n>` right after the label is tolerated and ignored (rows are not grouped);
- * - spaces, tabs and CR (CRLF line ends) separate tokens.
+ * - spaces, tabs and CR (CRLF line ends) separate tokens; a UTF-8 byte order mark at the start is skipped.
  * Every other line is an error naming its 1-based line number and the problem.
  */
 import { open } from 'node:fs/promises';
@@ -118,6 +118,8 @@ export class SvmlightParser {
 	feed(buf: Uint8Array, pos: number, end: number): void {
 		// every scanning loop stops at '\n', so a final newline keeps them inside the buffer
 		if (end > pos && buf[end - 1] !== 10) throw new RangeError('feed needs whole lines: the last byte must be a newline');
+		// a UTF-8 byte order mark some editors put first is not part of the first label
+		if (this.line === 0 && buf[pos] === 0xef && buf[pos + 1] === 0xbb && buf[pos + 2] === 0xbf) pos += 3;
 		const stats = this.stats;
 		let indices = this.indices;
 		let values = this.values;

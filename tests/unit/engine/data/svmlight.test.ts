@@ -115,6 +115,11 @@ describe('svmlight parser: accepted rows', () => {
 		expect(Array.from(rows.values!)).toEqual(forms.map((v) => Math.fround(Number(v))));
 	});
 
+	it('a UTF-8 byte order mark before the first label is skipped', () => {
+		const { rows } = parseSvmlight('\uFEFF+1 2:1\n-1 1:1\n');
+		expect(Array.from(rows.labels)).toEqual([1, -1]);
+	});
+
 	it('binary values give a binary profile and null values', () => {
 		const { rows, profile } = parseSvmlight('+1 1:1 2:1\n-1 3:1\n');
 		expect(profile.valueKind).toBe('binary');
