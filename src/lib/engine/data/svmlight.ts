@@ -308,40 +308,58 @@ export class SvmlightParser {
 export async function parseSvmlightFile(path: string, opts: ParseOptions = {}): Promise<DataProfile> {
 	const parser = new SvmlightParser(opts);
 	const fh = await open(path, 'r');
+	let pending: Promise<{ bytesRead: number }> | null = null;
 	try {
-		let buf = new Uint8Array(opts.readBytes ?? 4 << 20);
+		const size = Math.max(16, opts.readBytes ?? 4 << 20);
+		// two buffers: the next read fills one while the lines of the other are parsed
+		let cur = new Uint8Array(size);
+		let next = new Uint8Array(size);
 		let filled = 0;
 		let bytes = 0;
+		let eof = false;
+		let got = (await fh.read(cur, 0, cur.length, null)).bytesRead;
 		for (;;) {
-			if (filled === buf.length) {
-				// one line longer than the buffer
-				const bigger = new Uint8Array(buf.length * 2);
-				bigger.set(buf);
-				buf = bigger;
-			}
-			const { bytesRead } = await fh.read(buf, filled, buf.length - filled, null);
-			if (bytesRead === 0) break;
-			bytes += bytesRead;
-			const end = filled + bytesRead;
+			if (got === 0) eof = true;
+			bytes += got;
+			const end = filled + got;
 			let last = end - 1;
-			while (last >= filled && buf[last] !== 10) last--;
-			if (last < filled) {
+			while (last >= filled && cur[last] !== 10) last--;
+			if (eof) {
 				filled = end;
+				break;
+			}
+			if (last < filled) {
+				// no line end yet: read on into the same buffer, growing it when full
+				filled = end;
+				if (filled === cur.length) {
+					const bigger = new Uint8Array(cur.length * 2);
+					bigger.set(cur);
+					cur = bigger;
+				}
+				got = (await fh.read(cur, filled, cur.length - filled, null)).bytesRead;
 				continue;
 			}
-			parser.feed(buf, 0, last + 1);
-			buf.copyWithin(0, last + 1, end);
-			filled = end - last - 1;
+			const rest = end - last - 1;
+			if (next.length < Math.max(rest * 2, size)) next = new Uint8Array(Math.max(rest * 2, size));
+			next.set(cur.subarray(last + 1, end), 0);
+			pending = fh.read(next, rest, next.length - rest, null);
+			parser.feed(cur, 0, last + 1);
+			got = (await pending).bytesRead;
+			pending = null;
+			[cur, next] = [next, cur];
+			filled = rest;
 		}
 		if (filled > 0) {
 			// last line without a newline: give it one so every line ends in '\n'
 			const tail = new Uint8Array(filled + 1);
-			tail.set(buf.subarray(0, filled));
+			tail.set(cur.subarray(0, filled));
 			tail[filled] = 10;
 			parser.feed(tail, 0, filled + 1);
 		}
 		return parser.finish(bytes);
 	} finally {
+		// a parse error leaves a read in flight: let it land before closing
+		if (pending) await pending.catch(() => {});
 		await fh.close();
 	}
 }
