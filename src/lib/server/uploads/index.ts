@@ -64,7 +64,7 @@ export async function create(teamId: string, userId: string, params: UploadParam
 /** The dataset fields a plan takes from a ready sample (rows are the full dataset's, asked for separately). */
 export function planFields(u: Upload) {
 	const p = u.profile as Omit<SampleProfile, 'badLines'> | null;
-	if (u.status !== 'ready' || !p) return null;
+	if (u.status !== 'ready' || typeof p?.nnzMean !== 'number') return null;
 	return {
 		features: p.maxFeature,
 		nnzPerRow: Number(p.nnzMean.toPrecision(4)),
