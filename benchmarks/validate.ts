@@ -8,7 +8,7 @@
  * Prints and writes a markdown report with machine, date, command, the table and the error summary.
  */
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
-import { cpus, totalmem } from 'node:os';
+import { cpus, loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import type { Loss, StrategyName, ValueKind } from '../src/lib/engine/types.js';
@@ -87,6 +87,7 @@ interface Row {
 
 const rows: Row[] = [];
 const started = new Date();
+const loadAtStart = loadavg()[0];
 for (const job of jobs) {
 	const logistic = job.loss === 'logistic';
 	const rowsRam = rowsInRamBytes(job.rows, job.k, job.values);
@@ -144,6 +145,7 @@ const report = [
 	'# Validation: capacity model against measured jobs',
 	'',
 	`Machine: ${cpu}, ${cpus().length} cores, ${(totalmem() / 2 ** 30).toFixed(1)} GiB RAM, Node ${process.version}. Date: ${started.toISOString()}.`,
+	`Load average (1 min) at start ${loadAtStart.toFixed(1)}, at end ${loadavg()[0].toFixed(1)} on ${cpus().length} cores: other work on the machine shares the CPU with these runs.`,
 	`Command: \`npx tsx benchmarks/validate.ts${process.argv.slice(2).length ? ' ' + process.argv.slice(2).join(' ') : ''}\` (${((Date.now() - started.getTime()) / 60000).toFixed(1)} min; calibrations ${f1(rows.reduce((a, r) => a + r.calSeconds, 0))} s in total).`,
 	'',
 	'Each job: a calibration of its strategy alone (synthetic data, other seeds, at most the budget above per job), then the estimate for the full job, then the real run with `train` at full size under the same emulated budget and disk throttle.',

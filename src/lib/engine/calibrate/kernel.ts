@@ -7,13 +7,18 @@ import { Random } from '../data/random.js';
 import { axpy, dot } from '../solver/sparse.js';
 import type { KernelPoint } from './record.js';
 
-/** rows in the measured set: enough that rows themselves do not stay in cache */
-const KERNEL_NNZ = 1 << 19;
+/** nonzeros in the default measured row set (2–4 MiB of rows, about what a calibration run holds) */
+export const KERNEL_NNZ = 1 << 19;
 
-/** Measure ns per coordinate update at (k, d) for about `seconds` of work. */
-export function measureKernel(nnzPerRow: number, features: number, opts: { real?: boolean; seconds?: number; seed?: number } = {}): KernelPoint {
+/**
+ * Measure ns per coordinate update at (k, d) for about `seconds` of work. `rowBytes` sizes the
+ * row set (default KERNEL_NNZ nonzeros): rows beyond the CPU caches cost more per update.
+ */
+export function measureKernel(nnzPerRow: number, features: number, opts: { real?: boolean; seconds?: number; seed?: number; rowBytes?: number } = {}): KernelPoint {
 	const k = Math.max(1, Math.min(features, Math.round(nnzPerRow)));
-	const rows = Math.max(64, Math.floor(KERNEL_NNZ / k));
+	const perNnz = opts.real === false ? 4 : 8;
+	const nnzTotal = opts.rowBytes === undefined ? KERNEL_NNZ : Math.max(k * 64, Math.floor(opts.rowBytes / perNnz));
+	const rows = Math.max(64, Math.floor(nnzTotal / k));
 	const rng = new Random(opts.seed ?? 1);
 	const indices = new Uint32Array(rows * k);
 	for (let j = 0; j < indices.length; j++) indices[j] = rng.int(features);
@@ -42,7 +47,7 @@ export function measureKernel(nnzPerRow: number, features: number, opts: { real?
 		elapsed = performance.now() - t0;
 	} while (elapsed < budgetMs);
 	if (!Number.isFinite(sink)) throw new Error('kernel diverged');
-	return { nnzPerRow: k, features, nsPerUpdate: (elapsed * 1e6) / updates };
+	return { nnzPerRow: k, features, nsPerUpdate: (elapsed * 1e6) / updates, rowBytes: rows * k * perNnz };
 }
 
 /** The fixed kernel that defines relative core speed: k = 32, d = 65536 (w of 512 KiB), real values. */

@@ -42,7 +42,9 @@ export const calibrationRunSchema = z.object({
 export const kernelPointSchema = z.object({
 	nnzPerRow: z.number().positive(),
 	features: z.number().int().positive(),
-	nsPerUpdate: z.number().positive()
+	nsPerUpdate: z.number().positive(),
+	/** bytes of the row set the kernel cycled over (absent: the default 2–4 MiB) */
+	rowBytes: z.number().positive().optional()
 });
 
 export const calibrationRecordSchema = z.object({

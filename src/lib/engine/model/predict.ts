@@ -8,8 +8,8 @@
 import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
 import type { CalibrationRecord } from '../calibrate/record.js';
-import { fitModel, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
-import { binaryBytes, bytesOnDisk, formatBytes, GiB, textBytes, usableRamBytes, weightBytes } from './sizes.js';
+import { fitModel, footprintFactor, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
+import { binaryBytes, bytesOnDisk, formatBytes, GiB, rowsInRamBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
 
@@ -188,7 +188,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		binBytes,
 		usable: opts.memoryBytes !== undefined ? opts.memoryBytes + RUNTIME_BYTES : usableRamBytes(plan.machine.ramGiB),
 		memoryBytes: opts.memoryBytes,
-		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * 1e-9 * cpuScale,
+		// per update on the target: the kernel at (k, d), for rows of the dataset's size in RAM, at the target's core speed
+		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * footprintFactor(model.footprint, rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind)) * 1e-9 * cpuScale,
 		widening,
 		conversion: conversion(plan, rec, rows, cpuScale, binBytes)
 	};
