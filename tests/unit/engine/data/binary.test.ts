@@ -1,5 +1,5 @@
-import { describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { afterAll, describe, expect, it } from 'vitest';
+import { mkdtempSync, readFileSync, writeFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import {
@@ -14,6 +14,7 @@ import {
 import type { SparseRows } from '../../../../src/lib/engine/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'loadline-bin-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 /** Rows with lengths 0..6 cycling, so chunk records have odd label counts (padding) and empty rows. */
 function sampleRows(n: number, real: boolean): { label: number; idx: number[]; val: number[] }[] {

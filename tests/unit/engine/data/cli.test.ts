@@ -1,5 +1,5 @@
-import { describe, expect, it, vi } from 'vitest';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { afterAll, describe, expect, it, vi } from 'vitest';
+import { mkdtempSync, writeFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { gen } from '../../../../src/cli/commands/gen.js';
@@ -8,6 +8,7 @@ import { profile } from '../../../../src/cli/commands/profile.js';
 import { CliError } from '../../../../src/cli/args.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'loadline-cli-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 /** Run a command, returning what it printed on stdout. */
 async function run(cmd: { run(argv: string[]): Promise<number | void> }, argv: string[]): Promise<string> {

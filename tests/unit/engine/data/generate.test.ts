@@ -1,6 +1,6 @@
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { generateRows, generateToFile, resolveGenerateOptions, GenerateOptionError, type GenerateOptions } from '../../../../src/lib/engine/data/generate.js';
@@ -11,6 +11,7 @@ import { profileFile } from '../../../../src/lib/engine/data/profile.js';
 import type { SparseRows } from '../../../../src/lib/engine/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'loadline-gen-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 function positives(s: SparseRows): number {
 	let p = 0;
@@ -152,7 +153,6 @@ describe('synthetic generator', () => {
 		const all = join(dir, 'learn.svm');
 		await generateToFile(opts, all, 'svm');
 		const lines = readFileSync(all, 'latin1').trimEnd().split('\n');
-		const { writeFileSync } = await import('node:fs');
 		writeFileSync(join(dir, 'train.svm'), lines.slice(0, 8000).join('\n') + '\n');
 		writeFileSync(join(dir, 'test.svm'), lines.slice(8000).join('\n') + '\n');
 		execFileSync('/usr/bin/liblinear-train', ['-q', '-s', '2', '-c', '0.1', join(dir, 'train.svm'), join(dir, 'm.model')]);

@@ -1,11 +1,12 @@
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { execFileSync } from 'node:child_process';
-import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, writeFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseSvmlight, parseSvmlightFile, TextRowError } from '../../../../src/lib/engine/data/svmlight.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'loadline-svm-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 function errorOf(text: string): string {
 	try {
