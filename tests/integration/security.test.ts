@@ -1,7 +1,8 @@
 /** Security basics: headers on every page, cross-site form posts, sign-in rate limits, SQL-looking text kept as text. */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { baseUrl, client, signIn, testClientAddress } from '../helpers/session.js';
+import { readFileSync } from 'node:fs';
+import { baseUrl, client, followLink, requestLink, signIn, testClientAddress } from '../helpers/session.js';
 import { addMember, closeDb, db, makeProject, makeTeam, makeUser, unique } from '../helpers/factories.js';
 import { action } from '../helpers/forms.js';
 import { invitations, projects, teamBilling } from '../../src/lib/server/db/schema.js';
@@ -146,5 +147,36 @@ describe('SQL-looking text', () => {
 		expect((await api(`/api/projects/${encodeURIComponent('1 OR 1=1')}`)).status).toBe(404);
 		expect((await api(`/teams/${encodeURIComponent("x' OR '1'='1")}/members`)).status).toBe(404);
 		expect((await api(`/invite/${encodeURIComponent("' OR 1=1 --")}`)).status).toBe(200);
+	});
+
+	it('keeps SQL in the plan list search, sort and filter parameters as data', async () => {
+		const api = client(owner);
+		const plan = JSON.parse(readFileSync('tests/fixtures/plan-example.json', 'utf8'));
+		const name = `Robert'); DROP TABLE plan;-- ${unique('p')}`;
+		const created = await api('/api/plans', { method: 'POST', json: { projectId, name, plan } });
+		expect(created.status).toBe(201);
+		const list = async (params: Record<string, string>) => api(`/api/plans?${new URLSearchParams({ projectId, ...params })}`);
+		const found = await (await list({ q: 'DROP TABLE plan' })).json();
+		expect(found.rows.map((p: { name: string }) => p.name)).toEqual([name]);
+		expect((await (await list({ q: "' OR '1'='1" })).json()).rows).toEqual([]);
+		// LIKE wildcards in the search are literal characters, not patterns
+		expect((await (await list({ q: '%' })).json()).rows).toEqual([]);
+		const sort = await list({ sort: 'name; DROP TABLE plan' });
+		expect(sort.status).toBe(400);
+		expect((await sort.json()).error.message).toContain('sort must be one of');
+		expect((await list({ verdict: "meets' OR 1=1 --" })).status).toBe(400);
+		const page = await api(`/teams/${teamId}/projects/${projectId}?${new URLSearchParams({ q: "DROP TABLE plan" })}`);
+		expect(page.status).toBe(200);
+		expect(await page.text()).toContain("Robert'); DROP TABLE plan;--");
+	});
+});
+
+describe('magic links', () => {
+	it('refuses a sign-in link whose address was changed to another one', async () => {
+		const link = new URL(await requestLink(`${unique('mine')}@example.org`));
+		link.searchParams.set('email', `${unique('theirs')}@example.org`);
+		const res = await followLink(link.toString());
+		expect(res.cookie).toBeNull();
+		expect(res.location).toContain('error=Verification');
 	});
 });
