@@ -12,11 +12,11 @@ export const estimateRequest = z.object({
 	calibrationId: z.string().max(64).optional()
 });
 
-/** Create a plan, import a PLAN.json (name taken from the plan when absent), or duplicate one. */
-export const planCreate = z.union([
-	z.object({ projectId: uuid('projectId'), name: planName.optional(), plan: planSchema, calibrationId: z.string().max(64).optional() }),
-	z.object({ duplicateOf: uuid('duplicateOf'), name: planName.optional() })
-]);
+/** Create a plan, or import a PLAN.json (name taken from the plan when absent). */
+export const planCreate = z.object({ projectId: uuid('projectId'), name: planName.optional(), plan: planSchema, calibrationId: z.string().max(64).optional() });
+
+/** Duplicate a saved plan (POST /api/plans with duplicateOf). */
+export const planDuplicate = z.object({ duplicateOf: uuid('duplicateOf'), name: planName.optional() });
 
 export const planUpdate = z
 	.object({ name: planName.optional(), plan: planSchema.optional(), calibrationId: z.string().max(64).nullable().optional() })

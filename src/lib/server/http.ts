@@ -38,14 +38,17 @@ function codeFor(status: number) {
 	return ({ 400: 'invalid', 401: 'unauthenticated', 403: 'forbidden', 404: 'not_found', 409: 'conflict' } as Record<number, string>)[status] ?? 'error';
 }
 
-/** Parse a JSON body against a schema; a 400 names each bad field. */
-export async function body<S extends z.ZodType>(event: RequestEvent, schema: S): Promise<z.infer<S>> {
-	let raw: unknown;
+/** The request body as JSON; a 400 when it is not JSON. */
+export async function readJson(event: RequestEvent): Promise<unknown> {
 	try {
-		raw = await event.request.json();
+		return await event.request.json();
 	} catch {
 		throw new ApiError(400, 'invalid_json', 'The request body is not valid JSON.');
 	}
+}
+
+/** Check a value against a schema; a 400 names each bad field. */
+export function check<S extends z.ZodType>(raw: unknown, schema: S): z.infer<S> {
 	const parsed = schema.safeParse(raw);
 	if (!parsed.success) {
 		const fields = fieldErrors(parsed.error);
@@ -54,12 +57,19 @@ export async function body<S extends z.ZodType>(event: RequestEvent, schema: S):
 	return parsed.data;
 }
 
+/** Parse a JSON body against a schema; a 400 names each bad field. */
+export async function body<S extends z.ZodType>(event: RequestEvent, schema: S): Promise<z.infer<S>> {
+	return check(await readJson(event), schema);
+}
+
 /** zod issues as { "a.b": "message" }, first message per field. */
 export function fieldErrors(err: z.ZodError): Fields {
 	const out: Fields = {};
 	for (const issue of err.issues) {
 		const key = issue.path.join('.') || '_';
-		out[key] ??= issue.message;
+		// name each unknown key instead of zod's generic "Unrecognized key"
+		if (issue.code === 'unrecognized_keys') for (const k of issue.keys) out[key === '_' ? k : `${key}.${k}`] ??= `${k} is not a known field`;
+		else out[key] ??= issue.message;
 	}
 	return out;
 }

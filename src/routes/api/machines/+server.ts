@@ -17,6 +17,6 @@ export const POST = api(async (event) => {
 	await guard.user(event);
 	const input = await body(event, machineCreate);
 	const { team, user } = await guard.team(event, input.teamId, 'edit');
-	const [profile, source] = 'probe' in input ? [input.probe.machine, 'probe' as const] : [input.profile, 'manual' as const];
+	const [profile, source] = input.probe ? [input.probe.machine, 'probe' as const] : [input.profile!, 'manual' as const];
 	return json({ machine: await machines.create(team.id, user.id, input.name, profile, source) }, { status: 201 });
 });

@@ -1,8 +1,8 @@
 import { json } from '@sveltejs/kit';
-import { api, body, ApiError, query } from '$lib/server/http.js';
+import { api, check, readJson, ApiError, query } from '$lib/server/http.js';
 import * as guard from '$lib/server/guard.js';
 import * as plans from '$lib/server/plans.js';
-import { planCreate, planListQuery } from '$lib/schemas/plan-api.js';
+import { planCreate, planDuplicate, planListQuery } from '$lib/schemas/plan-api.js';
 
 /** GET /api/plans?projectId=…[&sort&dir&q&recommended&verdict&page&pageSize][&format=csv] or ?teamId=… (all plans of a team). */
 export const GET = api(async (event) => {
@@ -26,12 +26,14 @@ export const GET = api(async (event) => {
 /** POST /api/plans { projectId, name?, plan, calibrationId? } (create or import PLAN.json) or { duplicateOf, name? }. */
 export const POST = api(async (event) => {
 	await guard.user(event);
-	const input = await body(event, planCreate);
-	if ('duplicateOf' in input) {
-		const { plan, user } = await guard.plan(event, input.duplicateOf, 'edit');
-		const id = await plans.duplicate(plan, user.id, input.name);
+	const raw = await readJson(event);
+	if (raw && typeof raw === 'object' && 'duplicateOf' in raw) {
+		const dup = check(raw, planDuplicate);
+		const { plan, user } = await guard.plan(event, dup.duplicateOf, 'edit');
+		const id = await plans.duplicate(plan, user.id, dup.name);
 		return json({ plan: await plans.get(id) }, { status: 201 });
 	}
+	const input = check(raw, planCreate);
 	const { project, user } = await guard.project(event, input.projectId, 'edit');
 	const name = input.name ?? input.plan.name;
 	if (!name) throw new ApiError(400, 'invalid', 'Invalid name: name is required (give "name", or a "name" inside the plan).', { name: 'name is required' });
