@@ -96,11 +96,10 @@ export async function freshFor(teamId: string, plan: Plan): Promise<ResolvedCali
 	return row ? resolved(row, plan) : null;
 }
 
-/** The calibration an estimate should rest on: the one asked for, else a fresh one of this shape, else the built-in one. */
+/** The calibration an estimate should rest on: the newer of the one asked for and a fresh one of this shape, else the built-in one. */
 export async function forPlan(teamId: string, plan: Plan, calibrationId?: string | null): Promise<ResolvedCalibration> {
-	if (calibrationId) {
-		const asked = await get(teamId, calibrationId, plan);
-		if (asked) return asked;
-	}
-	return (await freshFor(teamId, plan)) ?? builtInCalibration(plan);
+	const fresh = await freshFor(teamId, plan);
+	const asked = calibrationId ? await get(teamId, calibrationId, plan) : null;
+	if (asked && (!fresh || asked.meta.createdAt >= fresh.meta.createdAt)) return asked;
+	return fresh ?? asked ?? builtInCalibration(plan);
 }
