@@ -12,7 +12,7 @@
  * projected-gradient spread over all examples is ≤ eps, as liblinear's -e eps), and its per-epoch
  * time is the time in coordinate updates / epochs; the duality-gap evaluation is reported apart.
  */
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, statSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
 import { join } from 'node:path';
@@ -59,12 +59,15 @@ async function ensure(name: string): Promise<{ bin: string; svm: string }> {
 	return { bin, svm };
 }
 
-function liblinear(svm: string, eps: number): { s: number; iters: number } {
+/** One liblinear-train run: wall seconds, CPU seconds (user + system, from /usr/bin/time) and its iteration count. */
+function liblinear(svm: string, eps: number): { s: number; cpu: number; iters: number } {
 	const t0 = performance.now();
-	const out = execFileSync('liblinear-train', ['-s', '3', '-c', String(C), '-e', String(eps), '-B', '-1', svm, '/tmp/loadline-bench.model'], { maxBuffer: 1 << 24 }).toString();
+	const r = spawnSync('/usr/bin/time', ['-f', 'CPU %U %S', 'liblinear-train', '-s', '3', '-c', String(C), '-e', String(eps), '-B', '-1', svm, '/tmp/loadline-bench.model'], { maxBuffer: 1 << 24 });
 	const s = seconds(t0);
-	const m = out.match(/#iter = (\d+)/);
-	return { s, iters: m ? Number(m[1]) : NaN };
+	if (r.status !== 0) throw new Error(`liblinear-train failed: ${r.stderr.toString()}`);
+	const m = r.stdout.toString().match(/#iter = (\d+)/);
+	const t = r.stderr.toString().match(/CPU ([\d.]+) ([\d.]+)/);
+	return { s, cpu: t ? Number(t[1]) + Number(t[2]) : NaN, iters: m ? Number(m[1]) : NaN };
 }
 
 const machine = `${cpus()[0]?.model ?? 'unknown CPU'}, ${cpus().length} cores`;
@@ -74,7 +77,7 @@ lines.push(`Machine: ${machine}; ${date}; Node ${process.version}; 1-minute load
 
 if (!flags['no-liblinear']) {
 	lines.push(`### In-memory epoch time per nonzero, hinge (L1-loss SVM dual), C = ${C}, stop at projected-gradient spread ≤ ${eps} (liblinear-train -s 3 -e ${eps})`, '');
-	lines.push('| data | w size | liblinear #iter | liblinear s/epoch | ours epochs | ours s/epoch (updates) | ns per nonzero, ours / liblinear | ratio | one gap evaluation s (ours) | liblinear load s | load avg |');
+	lines.push('| data | w size | liblinear #iter | liblinear s/epoch wall (CPU) | ours epochs | ours s/epoch wall (CPU) | ns per nonzero wall, ours / liblinear | ratio wall (CPU) | one gap evaluation s (ours) | liblinear load s | load avg |');
 	lines.push('|---|---|---|---|---|---|---|---|---|---|---|');
 }
 for (const name of flags.sets.split(',')) {
@@ -89,13 +92,18 @@ for (const name of flags.sets.split(',')) {
 	const llEpoch = (full.s - one.s) / (full.iters - 1);
 	log(`  ${one.s.toFixed(1)} s → ${llEpoch.toFixed(4)} s/epoch; ours`);
 	const rows = await loadBinary(bin);
+	const cpu0 = process.cpuUsage();
 	const ours = solveRows(rows, { loss: 'hinge', C, tol: 1e-12, maxEpochs: 100_000, seed: 1, referenceStop: eps });
+	const cpu1 = process.cpuUsage(cpu0);
 	const ourEpoch = ours.updateSeconds / ours.epochs;
-	log(`  ${ours.epochs} epochs, ${ourEpoch.toFixed(4)} s/epoch`);
+	// CPU of the whole solve (the updates plus one gap evaluation at the end), per epoch
+	const ourCpuEpoch = ((cpu1.user + cpu1.system) / 1e6 - ours.gapSeconds) / ours.epochs;
+	const llCpuEpoch = (full.cpu - one.cpu) / (full.iters - 1);
+	log(`  ${ours.epochs} epochs, ${ourEpoch.toFixed(4)} s/epoch (CPU ${ourCpuEpoch.toFixed(4)}; liblinear CPU ${llCpuEpoch.toFixed(4)})`);
 	const ns = (s: number) => ((s / h.nnz) * 1e9).toFixed(2);
 	const wBytes = h.d * 8;
 	lines.push(
-		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} | ${ours.epochs} | ${ourEpoch.toFixed(4)} | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× | ${ours.gapSeconds.toFixed(4)} | ${(one.s - llEpoch).toFixed(1)} | ${loadavg()[0].toFixed(1)} |`
+		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} (${llCpuEpoch.toFixed(4)}) | ${ours.epochs} | ${ourEpoch.toFixed(4)} (${ourCpuEpoch.toFixed(4)}) | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× (${(ourCpuEpoch / llCpuEpoch).toFixed(2)}×) | ${ours.gapSeconds.toFixed(4)} | ${(one.s - llEpoch).toFixed(1)} | ${loadavg()[0].toFixed(1)} |`
 	);
 	console.log(lines.join('\n'));
 }

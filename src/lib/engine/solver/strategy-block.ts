@@ -59,7 +59,7 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 	meter.hold(state);
 
 	// preparation holds the rows of one block, the reader's buffers and one section being written
-	meter.hold(state + blockBudget + 2 * chunkBytes);
+	meter.hold(state + Math.min(blockBudget, workingSetBytes(n, h.nnz, h.valueKind === 'real')) + 2 * chunkBytes);
 	const set: BlockSet = await meter.read(() => prepareBlocks(o.data, d, blockBudget, { compress: o.compress, throttle, workDir: o.workDir, diskMBps: o.diskMBps, chunkBytes }));
 	meter.passes = 1;
 	try {
