@@ -1,7 +1,8 @@
 /** Result e-mails the planning side sends: calibration finished (with a per-user opt-out) and comparison shared. */
 import { afterAll, beforeAll, describe, expect, it, inject, vi } from 'vitest';
 import { baseUrl, client, latestMail, linkIn, signIn } from '../helpers/session.js';
-import { closeDb, makeUser } from '../helpers/factories.js';
+import { closeDb, db, makeUser } from '../helpers/factories.js';
+import { userPreferences } from '../../src/lib/server/db/schema.js';
 import { action } from '../helpers/forms.js';
 
 // server modules read SvelteKit's private env; here it is this process's environment, set below
@@ -45,5 +46,16 @@ describe('notifications', () => {
 		expect(mail.subject).toBe('Dana Demo shared a comparison with you: Three machines');
 		expect(linkIn(mail)).toBe(`${baseUrl()}/teams/t/compare/c`);
 		expect(await notify.notifyComparisonShared('no-such-user', 'x', 'y', '/z')).toEqual({ sent: false, reason: 'no_address' });
+	});
+
+	it('works outside SvelteKit too, as the queue worker uses it, with the same opt-out', async () => {
+		const { createNotifier } = await import('../../src/lib/server/notify.js');
+		const worker = createNotifier(db(), { smtpUrl: inject('smtpUrl'), origin: baseUrl() });
+		const u = await makeUser('worker-side');
+		const before = Date.now();
+		expect(await worker.notifyCalibrationFinished(u.id, 'Weekly', '/p')).toEqual({ sent: true });
+		expect((await latestMail(u.email!, before)).subject).toBe('Calibration finished: Weekly');
+		await db().insert(userPreferences).values({ userId: u.id, calibrationMail: false });
+		expect(await worker.notifyCalibrationFinished(u.id, 'Weekly', '/p')).toEqual({ sent: false, reason: 'opted_out' });
 	});
 });

@@ -12,6 +12,7 @@ import * as mail from './mail.js';
 import * as letters from './letters.js';
 import * as limits from './billing/limits.js';
 import * as subscription from './billing/subscription.js';
+import * as ratelimit from './ratelimit.js';
 import type { InviteInput } from '$lib/schemas/invitation.js';
 
 /** An invitation link works for this long after it is sent (or re-sent). */
@@ -46,6 +47,9 @@ export async function listOpen(teamId: string) {
 }
 
 async function sendLink(teamId: string, inviter: { email: string; name: string | null }, email: string, role: Role, token: string, origin: string) {
+	if (!(await ratelimit.hit(`invite:team:${teamId}`, ratelimit.INVITES_PER_TEAM))) {
+		throw new ApiError(429, 'rate_limited', `This team has sent ${ratelimit.INVITES_PER_TEAM.limit} invitation e-mails in the last hour. Wait a little, then try again.`);
+	}
 	const [team] = await db.select({ name: teams.name }).from(teams).where(eq(teams.id, teamId));
 	const url = `${origin}/invite/${token}`;
 	await mail.send({ to: email, ...letters.invitation({ teamName: team.name, invitedBy: inviter.name || inviter.email, role, url, hours: INVITE_HOURS }) });

@@ -16,6 +16,8 @@ export interface Rule {
 /** Sign-in links: 5 per address and 30 per client address in 15 minutes. */
 export const SIGNIN_PER_ADDRESS: Rule = { limit: 5, windowSeconds: 15 * 60 };
 export const SIGNIN_PER_CLIENT: Rule = { limit: 30, windowSeconds: 15 * 60 };
+/** Invitation e-mails (sent and re-sent): 30 per team an hour, so a team cannot be used to flood inboxes. */
+export const INVITES_PER_TEAM: Rule = { limit: 30, windowSeconds: 60 * 60 };
 
 /** Count one hit; true while the key stays within its rule. */
 export async function hit(key: string, rule: Rule): Promise<boolean> {
