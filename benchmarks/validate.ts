@@ -16,6 +16,7 @@ import type { Plan } from '../src/lib/schemas/plan.js';
 import { generateToFile, GENERATE_DEFAULTS } from '../src/lib/engine/data/generate.js';
 import { train } from '../src/lib/engine/solver/train.js';
 import { calibrate } from '../src/lib/engine/calibrate/run.js';
+import { measureCoreSpeed } from '../src/lib/engine/calibrate/kernel.js';
 import { predict } from '../src/lib/engine/model/predict.js';
 import { binaryBytes, rowsInRamBytes } from '../src/lib/engine/model/sizes.js';
 import { budgetForRows } from '../src/lib/engine/model/sizes.js';
@@ -92,10 +93,11 @@ for (const job of jobs) {
 	const logistic = job.loss === 'logistic';
 	const rowsRam = rowsInRamBytes(job.rows, job.k, job.values);
 	const budget = job.strategy === 'memory' ? null : budgetForRows(job.strategy, job.rows, job.features, logistic, job.fraction * rowsRam);
-	// the plan is this machine with the job's emulated disk; the budget is given as a chosen cache size
+	// the plan is this machine (its core speed now) with the job's emulated disk; the budget is given as a chosen cache size
+	const coreSpeed = measureCoreSpeed(0.2).coreSpeed;
 	const plan: Plan = {
 		dataset: { rows: job.rows, features: job.features, nnzPerRow: job.k, positiveFraction: job.p, valueKind: job.values, format: 'binary', compressed: false },
-		machine: { ramGiB: 64, diskMBps: job.diskMBps, diskInterface: 'pcie5x4', cores: cpus().length, coreSpeed: 1 },
+		machine: { ramGiB: 64, diskMBps: job.diskMBps, diskInterface: 'pcie5x4', cores: cpus().length, coreSpeed: Math.min(20, coreSpeed) },
 		training: { loss: job.loss, C: job.C, tol: 0.01, cValues: 1, folds: 1 }
 	};
 	const cal = await calibrate(plan, { strategies: [job.strategy], budgetSeconds: calSeconds, memoryBytes: budget ?? undefined, seeds: [11, 12] });

@@ -17,7 +17,7 @@ import { generateToFile, GENERATE_DEFAULTS } from '../data/generate.js';
 import { train } from '../solver/train.js';
 import { budgetShape, binaryBytesPerRow, updatesPerRead } from '../model/ratios.js';
 import { budgetForRows, engineStateBytes, rowsInRamBytes } from '../model/sizes.js';
-import { fitFootprint, fitKernelLines, footprintFactor, kernelNs } from '../model/fit.js';
+import { fitKernelLines, kernelNs } from '../model/fit.js';
 import { measureCoreSpeed, measureKernel, REFERENCE_NS_PER_UPDATE } from './kernel.js';
 import { measureDecode } from './measure.js';
 import { STRATEGIES, type CalibrationRecord, type CalibrationRun, type KernelPoint } from './record.js';
@@ -94,11 +94,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		const dims = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
 		const real = ds.valueKind === 'real';
 		for (const d of dims) for (const kk of ks) kernel.push(measureKernel(kk, d, { real, seconds: 0.04 }));
-		const kernelFit = fitKernelLines(kernel.filter((p) => p.rowBytes === kernel[0].rowBytes));
-		// the same step over row sets beyond the CPU caches: where the plan's rows sit in the memory hierarchy
-		for (const rowBytes of [32 << 20, 128 << 20]) kernel.push(measureKernel(k, features, { real, seconds: 0.06, rowBytes }));
-		const footprint = fitFootprint(kernel, k, features, kernel[0].rowBytes ?? 0);
-		const foot = (rows: number) => footprintFactor(footprint, rowsInRamBytes(rows, k, ds.valueKind));
+		const kernelFit = fitKernelLines(kernel);
 		const nsCal = kernelNs(kernelFit, k, features);
 
 		const files = new Map<string, string>();
@@ -147,8 +143,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const rowsRam = rowsInRamBytes(rows, k, ds.valueKind);
 				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(fraction * rowsRam, MIN_BUDGET[s]));
 				const state = engineStateBytes(s, rows, features, logistic, memoryBytes);
-				// the target's rows sit further out in the memory hierarchy than these: slow the reader to keep the ratio
-				const diskMBps = throttle((readBps * foot(rows)) / foot(ds.rows));
+				const diskMBps = throttle(readBps);
 				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps });
 				const bytesOnDisk = binaryBytesPerRow(rows, k, ds.valueKind) * rows;
 				const rate = Math.min(diskMBps ? diskMBps * 1e6 : Infinity, decodeBps);
@@ -161,7 +156,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 					diskMBps: diskMBps ?? null,
 					cacheFraction: s === 'memory' ? 1 : Math.min(1, (memoryBytes! - state) / rowsRam),
 					blocks: s === 'block' || s === 'selective' ? Math.max(1, Math.ceil(1 / Math.min(1, (memoryBytes! - state) / rowsRam))) : 1,
-					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsCal * foot(rows) * 1e-9),
+					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsCal * 1e-9),
 					bytesOnDisk,
 					epochs: rep.epochs,
 					passes: rep.passes,

@@ -8,7 +8,6 @@
 import type { CalibrationRecord, CalibrationRun, KernelPoint } from '../calibrate/record.js';
 import type { StrategyName } from '../types.js';
 import { fitLinear, evalLinear, FREE, type LinearFit, type SlopeBounds } from './least-squares.js';
-import { rowsInRamBytes } from './sizes.js';
 
 /** ns per update = a + b·k at one feature dimension. */
 export interface KernelLine {
@@ -42,16 +41,9 @@ export interface StrategyFit {
 	updatesPerReadRange: [number, number];
 }
 
-/** ln ns per update against ln bytes of rows, at the plan's (k, d), non-decreasing in bytes. */
-export interface FootprintPoint {
-	lnBytes: number;
-	lnNs: number;
-}
-
 export interface FittedModel {
 	record: CalibrationRecord;
 	kernel: KernelLine[];
-	footprint: FootprintPoint[];
 	strategies: Partial<Record<StrategyName, StrategyFit>>;
 }
 
@@ -103,30 +95,6 @@ export function fitKernelLines(points: KernelPoint[]): KernelLine[] {
 	return lines.sort((x, y) => x.lnD - y.lnD);
 }
 
-/** Footprint curve from the kernel points at the plan's k and calibrated d, over their row-set sizes. */
-export function fitFootprint(points: KernelPoint[], k: number, d: number, baseBytes: number): FootprintPoint[] {
-	const at = points.filter((p) => p.features === d && Math.round(p.nnzPerRow) === Math.round(k)).map((p) => ({ lnBytes: Math.log(p.rowBytes ?? baseBytes), lnNs: Math.log(p.nsPerUpdate) }));
-	at.sort((a, b) => a.lnBytes - b.lnBytes);
-	// more bytes of rows never make an update cheaper, nor dearer than in proportion (keeps predictions monotone in rows)
-	for (let i = 1; i < at.length; i++) at[i].lnNs = Math.min(Math.max(at[i].lnNs, at[i - 1].lnNs), at[i - 1].lnNs + (at[i].lnBytes - at[i - 1].lnBytes));
-	return at;
-}
-
-/** Per-update cost multiplier for rows of `bytes` relative to the default kernel row set; 1 without footprint points. */
-export function footprintFactor(curve: FootprintPoint[], bytes: number): number {
-	if (curve.length < 2) return 1;
-	const x = Math.log(Math.max(1, bytes));
-	const base = curve[0].lnNs;
-	if (x <= curve[0].lnBytes) return 1;
-	for (let i = 1; i < curve.length; i++) {
-		if (x <= curve[i].lnBytes) {
-			const t = (x - curve[i - 1].lnBytes) / (curve[i].lnBytes - curve[i - 1].lnBytes);
-			return Math.exp(curve[i - 1].lnNs + t * (curve[i].lnNs - curve[i - 1].lnNs) - base);
-		}
-	}
-	return Math.exp(curve[curve.length - 1].lnNs - base);
-}
-
 /** Kernel ns per update at (k, d), interpolated in ln d and held flat outside the measured range. */
 export function kernelNs(kernel: KernelLine[], k: number, d: number): number {
 	const lnD = Math.log(d);
@@ -161,7 +129,7 @@ function fitCost(model: number[], measured: number[]): { ratio: number; fixed: n
 	return { ratio, fixed: f.coef[0] };
 }
 
-function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: FootprintPoint[], strategy: StrategyName): StrategyFit | undefined {
+function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: StrategyName): StrategyFit | undefined {
 	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0);
 	if (runs.length === 0) return undefined;
 	const b = boundsFor(strategy);
@@ -170,7 +138,7 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	// runs are taken as they ran: a short reference measurement before them tracks the machine's load worse than
 	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
 	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
-	const computeModel = runs.map((r) => r.updates * tKernel * footprintFactor(footprint, rowsInRamBytes(r.rows, k, rec.plan.dataset.valueKind)));
+	const computeModel = runs.map((r) => r.updates * tKernel);
 	const { ratio: costRatio, fixed: computeFixed } = fitCost(computeModel, runs.map((r) => r.computeSeconds));
 	const implied = (r: CalibrationRun) => (r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds);
 	const free = runs.filter((r) => r.diskMBps === null);
@@ -223,16 +191,13 @@ const cache = new WeakMap<CalibrationRecord, FittedModel>();
 export function fitModel(rec: CalibrationRecord): FittedModel {
 	const hit = cache.get(rec);
 	if (hit) return hit;
-	const base = rec.kernel.filter((p) => p.rowBytes === rec.kernel[0].rowBytes);
-	const kernel = fitKernelLines(base);
-	const k = Math.min(rec.plan.dataset.nnzPerRow, rec.features);
-	const footprint = fitFootprint(rec.kernel, k, rec.features, rec.kernel[0].rowBytes ?? 0);
+	const kernel = fitKernelLines(rec.kernel);
 	const strategies: FittedModel['strategies'] = {};
 	for (const s of ['memory', 'block', 'selective', 'stream'] as const) {
-		const f = fitStrategy(rec, kernel, footprint, s);
+		const f = fitStrategy(rec, kernel, s);
 		if (f) strategies[s] = f;
 	}
-	const model = { record: rec, kernel, footprint, strategies };
+	const model = { record: rec, kernel, strategies };
 	cache.set(rec, model);
 	return model;
 }

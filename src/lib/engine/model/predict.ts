@@ -3,13 +3,13 @@
  * (no I/O, no matrix algebra): the web app calls it on every keystroke and for what-if curves.
  *
  * Target-machine scaling: CPU work (updates, decoding) is scaled by coreSpeed of the
- * calibration machine over the plan's; reading runs at min(disk speed, scaled decode speed).
+ * calibration machine over the plan's; reading runs at the slower of the disk and the scaled decode speed.
  */
 import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
 import type { CalibrationRecord } from '../calibrate/record.js';
-import { fitModel, footprintFactor, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
-import { binaryBytes, bytesOnDisk, formatBytes, GiB, rowsInRamBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
+import { fitModel, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
+import { binaryBytes, bytesOnDisk, formatBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
 
@@ -188,8 +188,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		binBytes,
 		usable: opts.memoryBytes !== undefined ? opts.memoryBytes + RUNTIME_BYTES : usableRamBytes(plan.machine.ramGiB),
 		memoryBytes: opts.memoryBytes,
-		// per update on the target: the kernel at (k, d), for rows of the dataset's size in RAM, at the target's core speed
-		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * footprintFactor(model.footprint, rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind)) * 1e-9 * cpuScale,
+		// per update on the target: the kernel at (k, d) at the target's core speed
+		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * 1e-9 * cpuScale,
 		widening,
 		conversion: conversion(plan, rec, rows, cpuScale, binBytes)
 	};
@@ -228,4 +228,3 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 	};
 }
 
-export { GiB };
