@@ -41,7 +41,7 @@ class Counter extends Transform {
 }
 
 /** First bytes of the stream, and a stream that yields them again followed by the rest. */
-async function peek(body: ReadableStream<Uint8Array>, want: number): Promise<{ head: Buffer; stream: Readable }> {
+async function peek(body: ReadableStream<Uint8Array>, want: number): Promise<{ head: Buffer; stream: Readable; drain: () => Promise<void> }> {
 	const reader = body.getReader();
 	const parts: Buffer[] = [];
 	let have = 0;
@@ -65,7 +65,16 @@ async function peek(body: ReadableStream<Uint8Array>, want: number): Promise<{ h
 			yield Buffer.from(value);
 		}
 	}
-	return { head, stream: Readable.from(replay(), { objectMode: false }) };
+	/** read and drop what the client still sends (up to 1 MiB), so it gets our answer instead of a reset connection */
+	const drain = async () => {
+		let dropped = 0;
+		while (!ended && dropped < 2 ** 20) {
+			const { value, done } = await reader.read().catch(() => ({ value: undefined, done: true }));
+			if (done) return;
+			dropped += value?.length ?? 0;
+		}
+	};
+	return { head, stream: Readable.from(replay(), { objectMode: false }), drain };
 }
 
 export interface Received {
@@ -78,7 +87,7 @@ export interface Received {
 
 export async function receive(body: ReadableStream<Uint8Array> | null, path: string, limit: number): Promise<Received> {
 	if (!body) throw new UploadError(400, 'empty', 'The request has no body: send the file itself as the body.');
-	const { head, stream } = await peek(body, 2);
+	const { head, stream, drain } = await peek(body, 2);
 	if (head.length === 0) throw new UploadError(400, 'empty', 'The file is empty.');
 	const gzip = head[0] === 0x1f && head[1] === 0x8b;
 	const sent = new Counter(limit, () => new UploadError(413, 'too_large', `The file is larger than the upload limit of ${formatLimit(limit)}.`));
@@ -93,7 +102,7 @@ export async function receive(body: ReadableStream<Uint8Array> | null, path: str
 		else await pipeline(stream, sent, stored, out);
 	} catch (err) {
 		await unlink(path).catch(() => {});
-		stream.destroy();
+		await drain();
 		if (err instanceof UploadError) throw err;
 		const code = (err as { code?: string }).code ?? '';
 		if (code.startsWith('Z_')) throw new UploadError(400, 'bad_gzip', `The file starts like gzip but does not inflate (${(err as Error).message}).`);
