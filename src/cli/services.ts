@@ -45,7 +45,7 @@ function newestMtime(path: string): number {
 
 const buildInputs = ['src', 'static', 'svelte.config.js', 'vite.config.ts', 'package-lock.json', 'tsconfig.json'];
 
-/** Where a build goes: `npm start` serves build/; tests build their own copy so a running app is never rebuilt under it. */
+/** Where a build goes: `npm start` serves build/; each test run builds its own copy, so no running app is rebuilt under it. */
 export interface BuildTarget {
 	/** adapter-node output, relative to the project */
 	out: string;
@@ -53,7 +53,7 @@ export interface BuildTarget {
 	kitDir: string;
 }
 export const APP_BUILD: BuildTarget = { out: 'build', kitDir: '.svelte-kit' };
-export const TEST_BUILD: BuildTarget = { out: '.data/test-build', kitDir: '.data/test-kit' };
+export const testBuild = (run: string): BuildTarget => ({ out: `.data/test-builds/${run}/build`, kitDir: `.data/test-builds/${run}/kit` });
 
 function sleepSync(ms: number) {
 	Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);

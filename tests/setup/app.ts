@@ -10,7 +10,7 @@ import { join } from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { ensureDatabase, freePort, startCluster, stopCluster } from '../../src/lib/server/db/cluster.js';
 import { applyMigrations } from '../../src/lib/server/db/migrate.js';
-import { buildIfStale, serveApp, startMaildev, TEST_BUILD } from '../../src/cli/services.js';
+import { buildIfStale, root, serveApp, startMaildev, testBuild } from '../../src/cli/services.js';
 import { startFakeStripe } from '../../src/cli/fake-stripe.js';
 
 declare module 'vitest' {
@@ -45,7 +45,8 @@ export default async function setup(project: TestProject) {
 	const stripe = await startFakeStripe();
 	const stripeWebhookSecret = `whsec_test_${randomBytes(16).toString('hex')}`;
 
-	buildIfStale(TEST_BUILD);
+	const build = testBuild(String(process.pid));
+	buildIfStale(build);
 	const appPort = await freePort();
 	const uploadDir = join(dir, 'uploads');
 	const app = await serveApp(appPort, {
@@ -59,7 +60,7 @@ export default async function setup(project: TestProject) {
 		STRIPE_WEBHOOK_SECRET: stripeWebhookSecret,
 		// tests give each sign-in request its own client address, so the per-client rate limit stays testable
 		CLIENT_IP_HEADER: 'x-forwarded-for'
-	}, TEST_BUILD);
+	}, build);
 
 	project.provide('baseUrl', `http://127.0.0.1:${appPort}`);
 	project.provide('inboxUrl', `http://127.0.0.1:${inboxPort}`);
@@ -78,6 +79,7 @@ export default async function setup(project: TestProject) {
 			stopCluster(dataDir);
 		} finally {
 			rmSync(dir, { recursive: true, force: true });
+			rmSync(join(root, build.out, '..'), { recursive: true, force: true });
 		}
 	};
 }
