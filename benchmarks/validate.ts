@@ -102,7 +102,11 @@ for (const job of jobs) {
 	};
 	const cal = await calibrate(plan, { strategies: [job.strategy], budgetSeconds: calSeconds, memoryBytes: budget ?? undefined, seeds: [11, 12] });
 	const here: Plan = { ...plan, machine: { ...plan.machine, coreSpeed: cal.machine.coreSpeed } };
-	const est = predict(here, cal, { memoryBytes: budget ?? undefined }).strategies[0];
+	const est = predict(here, cal, { memoryBytes: budget ?? undefined }).strategies.find((e) => e.strategy === job.strategy);
+	if (!est) {
+		console.error(`job ${job.id} ${job.strategy}: not calibrated (${cal.notes.join('; ')})`);
+		continue;
+	}
 	const data = join(dataDir, `job${job.id}-${job.rows}.bin`);
 	if (!existsSync(data))
 		await generateToFile({ rows: job.rows, features: job.features, nnz: job.k, positive: job.p, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: job.values, seed: 1 }, data, 'bin');

@@ -13,20 +13,21 @@ const wall = (plan: Plan, s: StrategyName, rec = record) => predict(plan, rec).s
 
 describe('memory feasibility', () => {
 	it('turns infeasible exactly where required bytes exceed usable RAM', () => {
-		// by hand: solver rows 21 B/row + 8 B per real nonzero (+8), w 8d, α 8n, runtime; usable = RAM − max(0.5 GiB, 10 %)
+		// by hand: solver rows 21 B/row + 8 B per real nonzero (+8), w 8d, α 8n, two 8 MiB read buffers, runtime; usable = RAM − max(0.5 GiB, 10 %)
 		const ramGiB = 16;
 		const usable = ramGiB * GiB - 0.1 * ramGiB * GiB;
 		const d = 1_000_000;
 		const k = 40;
 		const perRow = 21 + 8 * k + 8;
-		const limit = Math.floor((usable - 8 - 8 * d - RUNTIME_BYTES) / perRow);
+		const buffers = 2 * 8 * 2 ** 20;
+		const limit = Math.floor((usable - 8 - 8 * d - buffers - RUNTIME_BYTES) / perRow);
 		const at = (rows: number) => predict(aPlan({ dataset: { rows, features: d, nnzPerRow: k }, machine: { ramGiB } }), record).strategies[0];
 		expect(at(limit).feasible).toBe(true);
 		expect(at(limit).reason).toBeNull();
 		const over = at(limit + 1);
 		expect(over.feasible).toBe(false);
 		expect(over.reason).toMatch(/^needs 14\.4 GiB .*machine has 14\.4 GiB usable of 16 GiB$/);
-		expect(at(limit).peakMemoryBytes).toBe(limit * perRow + 8 + 8 * d);
+		expect(at(limit).peakMemoryBytes).toBe(limit * perRow + 8 + 8 * d + buffers);
 	});
 
 	it('explains an out-of-core strategy that cannot hold even w and α', () => {

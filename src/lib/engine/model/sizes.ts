@@ -80,17 +80,20 @@ export function formatBytes(bytes: number): string {
 	return `${u === 0 ? x.toFixed(0) : x.toFixed(1)} ${units[u]}`;
 }
 
+/** One of the two read buffers a strategy's reader keeps (one read ahead): budget/div, 64 KiB to 8 MiB. */
+const readBuffer = (memoryBytes: number, div: number) => Math.max(64 * 1024, Math.min(8 << 20, Math.floor(memoryBytes / div)));
+
 /**
- * What the engine counts for a strategy besides the rows in its budget: w and α, plus the
- * margin log (8n) of block, selective and stream, selective's cache flag per example, and
- * stream's resident flags (1n) and two read buffers of memoryBytes/16 (64 KiB to 8 MiB each).
+ * What the engine counts for a strategy besides the rows in its budget (mirrors solver/strategy-*.ts):
+ * w and α, two read buffers, plus the margin log (8n) of block, selective and stream; block's
+ * per-example solver state (12n), selective's cache flag and stream's resident flag (1n).
  */
 export function engineStateBytes(strategy: 'memory' | 'block' | 'selective' | 'stream', rows: number, features: number, logistic: boolean, memoryBytes = Infinity): number {
-	if (strategy === 'memory') return stateBytes(rows, features, logistic, false);
+	if (strategy === 'memory') return stateBytes(rows, features, logistic, false) + 2 * (8 << 20);
 	const state = stateBytes(rows, features, logistic, true);
-	if (strategy === 'selective') return state + rows;
-	if (strategy === 'stream') return state + rows + 2 * Math.max(64 * 1024, Math.min(8 << 20, Math.floor(memoryBytes / 16))) + 1024;
-	return state;
+	if (strategy === 'block') return state + 12 * rows + 2 * readBuffer(memoryBytes, 32);
+	if (strategy === 'selective') return state + rows + 2 * readBuffer(memoryBytes, 32);
+	return state + rows + 2 * readBuffer(memoryBytes, 16) + 1024;
 }
 
 /** The memory budget that leaves `rowBytes` for rows after the engine's own state (stream's buffers grow with the budget). */
