@@ -197,21 +197,21 @@ describe('calibration jobs', () => {
 	});
 
 	it('retries a job whose worker was killed mid-run', async () => {
-		await Promise.all(workers.splice(0).map((w) => w.stop()));
-		// a longer budget so the job is surely still running when the worker dies
-		const doomed = await startWorker({ LOADLINE_CALIBRATION_SECONDS: '4' });
+		const doomed = workers.pop()!;
 		const plan = await makePlan(teamId, projectId, smallPlan(4));
 		const { job } = await (await editor(`/api/plans/${plan.id}/calibrate`, { method: 'POST', json: {} })).json();
 		await untilRunning(job.id);
+		// a tiny calibration still takes seconds, so the kill lands mid-run
 		doomed.child.kill('SIGKILL');
 		await new Promise((r) => doomed.child.once('exit', r));
 		expect((await jobRow(job.id)).status).toBe('running');
 
 		workers.push(await startWorker());
-		// its heartbeat stops; after LOADLINE_JOB_STALE_SECONDS (8 in tests) the new worker's sweep hands the job on
+		// its heartbeat stopped; after LOADLINE_JOB_STALE_SECONDS (6 in tests) the new worker's sweep hands the job on
 		const { job: after } = await untilSettled(job.id, 50_000);
 		expect(after.status).toBe('done');
 		expect(after.attempts).toBe(2);
+		expect(workers[0].output()).toMatch(new RegExp(`calibration ${job.id}: worker lost mid-run; queued again`));
 		const [cal] = await db().select().from(calibrations).where(eq(calibrations.id, after.calibrationId!));
 		expect(cal.teamId).toBe(teamId);
 	}, 90_000);
