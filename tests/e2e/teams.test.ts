@@ -2,7 +2,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
 import { launch } from '../helpers/browser.js';
-import { baseUrl, latestMail, linkIn } from '../helpers/session.js';
+import { baseUrl, client, latestMail, linkIn } from '../helpers/session.js';
+import { readFileSync } from 'node:fs';
 import { addMember, closeDb, makeProject, makeTeam, makeUser, unique } from '../helpers/factories.js';
 
 let browser: Browser;
@@ -22,7 +23,7 @@ async function watch(page: Page) {
 	await page.addInitScript(() => {
 		document.addEventListener('securitypolicyviolation', (e) => {
 			(window as unknown as { __csp: string[] }).__csp ??= [];
-			(window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI}`);
+			(window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI}${e.sourceFile ? ` at ${e.sourceFile}:${e.lineNumber}` : ""}`);
 		});
 	});
 	page.on('console', (m) => {
@@ -88,6 +89,27 @@ describe('team pages in the browser', () => {
 		await page.reload();
 		expect(await page.getByLabel('E-mail me when a calibration I started finishes').isChecked()).toBe(false);
 		expect(await violations()).toEqual([]);
+		await context.close();
+	});
+
+	it('shows the planning pages (editor, plan with charts, compare, machines, samples) without a CSP violation', async () => {
+		const team = await makeTeam(unique('Planning under CSP'));
+		const owner = await makeUser('csp-owner');
+		await addMember(team.id, owner.id, 'owner');
+		const project = await makeProject(team.id);
+		const context = await browser.newContext();
+		const page = await context.newPage();
+		const violations = await watch(page);
+		await signInThroughInbox(page, owner.email!);
+		const plan = JSON.parse(readFileSync('tests/fixtures/plan-example.json', 'utf8'));
+		const cookie = (await context.cookies()).map((c) => `${c.name}=${c.value}`).join('; ');
+		const created = await (await client(cookie)('/api/plans', { method: 'POST', json: { projectId: project.id, plan } })).json();
+		const paths = [`/teams/${team.id}/plans/new?project=${project.id}`, `/teams/${team.id}/plans/${created.plan.id}`, `/teams/${team.id}/compare`, `/teams/${team.id}/machines`, `/teams/${team.id}/uploads`];
+		for (const path of paths) {
+			const res = await page.goto(`${baseUrl()}${path}`, { waitUntil: 'networkidle' });
+			expect(res?.status(), path).toBe(200);
+			expect(await violations(), path).toEqual([]);
+		}
 		await context.close();
 	});
 });

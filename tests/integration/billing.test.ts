@@ -89,6 +89,15 @@ describe('billing', () => {
 		expect((await api(`/api/projects/${listed[0].id}`, { method: 'PATCH', json: { description: 'still editable' } })).status).toBe(200);
 		for (const p of listed.slice(0, 3)) expect((await api(`/api/projects/${p.id}`, { method: 'DELETE' })).status).toBe(204);
 		expect((await api('/api/projects', { method: 'POST', json: { teamId, name: unique('under the limit') } })).status).toBe(201);
+
+		// subscribing again makes a new subscription on the same customer; late events about the old one change nothing
+		expect((await action(owner, `/teams/${teamId}/billing?/subscribe`, { cardToken: 'tok_visa' })).status).toBe(200);
+		const renewed = await billing(teamId);
+		expect(renewed).toMatchObject({ status: 'active', stripeCustomerId: row.stripeCustomerId, cancelAtPeriodEnd: false });
+		expect(renewed.stripeSubscriptionId).not.toBe(row.stripeSubscriptionId);
+		const late = subscriptionEvent('customer.subscription.updated', { ...sub, status: 'canceled' }, Math.floor(Date.now() / 1000) + 5);
+		expect((await (await deliver(JSON.stringify(late))).json()).outcome).toBe('stale');
+		expect((await billing(teamId)).status).toBe('active');
 	});
 
 	it('refuses a declined card clearly and leaves the team on Free', async () => {

@@ -24,7 +24,7 @@ afterAll(closeDb);
 
 describe('security headers', () => {
 	const signedOutPages = ['/signin', '/signin/check-email', '/signin/problem?error=Verification', '/pricing', '/invite/unknown-token'];
-	const signedInPages = () => [`/teams/${teamId}/projects`, `/teams/${teamId}/projects/${projectId}`, `/teams/${teamId}/members`, `/teams/${teamId}/billing`, '/settings', '/pricing'];
+	const signedInPages = () => [`/teams/${teamId}/projects`, `/teams/${teamId}/projects/${projectId}`, `/teams/${teamId}/members`, `/teams/${teamId}/billing`, `/teams/${teamId}/compare`, `/teams/${teamId}/machines`, `/teams/${teamId}/uploads`, `/teams/${teamId}/plans/new?project=${projectId}`, '/settings', '/pricing'];
 
 	function expectHeaders(res: Response, path: string) {
 		expect(res.status, path).toBe(200);
