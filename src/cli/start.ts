@@ -68,7 +68,7 @@ try {
 		shutdown(1);
 	});
 	// the calibration and upload worker, on the same database (more may run: `npm run worker`)
-	const worker = startWorker({ DATABASE_URL: database.url });
+	const worker = startWorker({ DATABASE_URL: database.url, ORIGIN: `http://127.0.0.1:${port}`, SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}` });
 	children.push(worker);
 	worker.on('exit', (code) => {
 		if (code !== null && code !== 0) console.error(`worker exited (${code}); calibrations and uploads wait until one runs (npm run worker).`);

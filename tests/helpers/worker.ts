@@ -28,7 +28,7 @@ export async function startWorker(env: Record<string, string> = {}): Promise<Tes
 	// node itself with tsx's loader (not the tsx command, which runs a second process): a kill reaches the worker
 	const child = spawn(process.execPath, ['--import', 'tsx', join(root, 'src/cli/worker.ts')], {
 		cwd: root,
-		env: { ...process.env, ...TEST_WORKER_ENV, ...env, DATABASE_URL: inject('databaseUrl'), UPLOAD_DIR: inject('uploadDir') },
+		env: { ...process.env, ...TEST_WORKER_ENV, ...env, DATABASE_URL: inject('databaseUrl'), UPLOAD_DIR: inject('uploadDir'), SMTP_URL: inject('smtpUrl'), ORIGIN: inject('baseUrl') },
 		stdio: ['ignore', 'pipe', 'pipe']
 	});
 	let log = '';

@@ -6,7 +6,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { inject } from 'vitest';
 import { eq } from 'drizzle-orm';
-import { client, signIn } from '../helpers/session.js';
+import { client, latestMail, linkIn, signIn } from '../helpers/session.js';
 import { addMember, closeDb, db, makeProject, makeTeam, makeUser } from '../helpers/factories.js';
 import { jobRow, makePlan, smallPlan } from '../helpers/plans.js';
 import { startWorker, type TestWorker } from '../helpers/worker.js';
@@ -19,6 +19,7 @@ let viewer: ReturnType<typeof client>;
 let outsider: ReturnType<typeof client>;
 let teamId: string;
 let projectId: string;
+let editorEmail: string;
 const workers: TestWorker[] = [];
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
@@ -75,6 +76,7 @@ beforeAll(async () => {
 	await addMember(team.id, e.id, 'editor');
 	await addMember(team.id, v.id, 'viewer');
 	await addMember((await makeTeam()).id, o.id, 'owner');
+	editorEmail = e.email!;
 	editor = client(await signIn(e.email!));
 	viewer = client(await signIn(v.email!));
 	outsider = client(await signIn(o.email!));
@@ -89,6 +91,7 @@ describe('calibration jobs', () => {
 	it('queues, runs in a worker with moving progress, stores the record, then reuses it for a plan of the same shape', async () => {
 		workers.push(await startWorker());
 		const plan = await makePlan(teamId, projectId, smallPlan(0.5));
+		const asked = Date.now();
 		const res = await editor(`/api/plans/${plan.id}/calibrate`, { method: 'POST', json: {} });
 		expect(res.status).toBe(202);
 		const queued = (await res.json()).job as Job;
@@ -102,6 +105,10 @@ describe('calibration jobs', () => {
 		const record = calibrationRecordSchema.parse(job.calibration!.record);
 		expect(record.runs.length).toBeGreaterThan(0);
 		expect(record.plan.training.C).toBe(0.5);
+		// whoever started it hears that it finished, with a link to the plan
+		const mail = await latestMail(editorEmail, asked);
+		expect(mail.subject).toBe(`Calibration finished: ${plan.name}`);
+		expect(linkIn(mail)).toBe(`${inject('baseUrl')}/teams/${teamId}/plans/${plan.id}`);
 
 		// a second plan of the same shape (only rows differ) reuses the record and says so
 		const twin = await makePlan(teamId, projectId, { ...smallPlan(0.5), dataset: { ...smallPlan(0.5).dataset, rows: 9000 } });

@@ -12,6 +12,7 @@ import { MAX_ATTEMPTS, QUEUE_CALIBRATE, QUEUE_PARSE_UPLOAD, queueSettings } from
 import { startBoss } from './queue.js';
 import { runCalibration } from './run-calibration.js';
 import * as store from './store.js';
+import * as notify from './notify.js';
 import { parseUploadJob } from '../uploads/parse-job.js';
 
 export interface CalibrateJobData {
@@ -68,6 +69,12 @@ export async function calibrateJob(db: Db, job: PgBoss.JobWithMetadata<Calibrate
 	if (record === null) return log(`calibration ${id}: cancelled or handed to another worker`);
 	const calibrationId = await persist(() => store.finish(db, row, record, row.uploadId ? 'sample' : 'synthetic'));
 	log(`calibration ${id}: ${calibrationId ? `done in ${((Date.now() - started) / 1000).toFixed(1)} s` : 'cancelled before it could be stored'}`);
+	if (!calibrationId) return;
+	// the mail is a courtesy: failing to send it never fails the job
+	await notify
+		.calibrationDone(db, row)
+		.then((r) => log(`calibration ${id}: mail ${r.replace('_', ' ')}`))
+		.catch((err) => log(`calibration ${id}: mail not sent (${(err as Error).message})`));
 }
 
 export interface WorkerHandle {
