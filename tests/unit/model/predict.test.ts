@@ -9,6 +9,7 @@ import { aRecord } from './record-factory.js';
 
 const record = aRecord();
 const twisted = aRecord({ twisted: true });
+const deep = aRecord({ footprint: true });
 const wall = (plan: Plan, s: StrategyName, rec = record) => predict(plan, rec).strategies.find((e) => e.strategy === s)!.wallSeconds;
 
 describe('memory feasibility', () => {
@@ -48,7 +49,7 @@ describe('monotonicity over a grid', () => {
 	const nonDecreasing = (xs: number[]) => xs.every((x, i) => i === 0 || x >= xs[i - 1] * (1 - 1e-12));
 	const nonIncreasing = (xs: number[]) => xs.every((x, i) => i === 0 || x <= xs[i - 1] * (1 + 1e-12));
 
-	for (const [name, rec] of [['fitted laws', record], ['wrong-sign noise', twisted]] as const) {
+	for (const [name, rec] of [['fitted laws', record], ['wrong-sign noise', twisted], ['rows beyond the caches', deep]] as const) {
 		it(`more RAM never makes memory, selective or stream slower (${name})`, () => {
 			for (const s of ['memory', 'selective', 'stream'] as const)
 				for (const rows of [1e6, 1e8, 1e9]) {
@@ -142,6 +143,14 @@ describe('what an estimate contains', () => {
 		const fast = wall(aPlan({ machine: { coreSpeed: 2 } }), 'memory').p50;
 		expect(fast).toBeLessThan(slow);
 		expect(fast).toBeGreaterThan(slow / 2 - 1);
+	});
+
+	it('adds the memory stalls of rows beyond the CPU caches to the per-update cost', () => {
+		// 1e6 rows × 349 B ≈ 333 MiB of rows, beyond the 128 MiB point: (2 × 1800 + 2000) / (2 × 1800) ns per update
+		const p = aPlan({ dataset: { rows: 1e6, features: 1e6, nnzPerRow: 40 } });
+		const flat = predict(p, record).strategies[0].breakdown.compute;
+		const far = predict(p, deep).strategies[0].breakdown.compute;
+		expect(far / flat).toBeCloseTo(5600 / 3600, 2);
 	});
 
 	it('predicts fast enough for every keystroke', () => {

@@ -62,7 +62,7 @@ function run(strategy: StrategyName, rows: number, seed: number, f: number, r: n
 }
 
 /** `throttleOverhead`: measured read time over bytes ÷ throttle (default 1.05) */
-export function aRecord(opts: { twisted?: boolean; features?: number; throttleOverhead?: number } = {}): CalibrationRecord {
+export function aRecord(opts: { twisted?: boolean; features?: number; throttleOverhead?: number; footprint?: boolean } = {}): CalibrationRecord {
 	const twisted = opts.twisted ?? false;
 	const oh = opts.throttleOverhead ?? 1.05;
 	const runs: CalibrationRun[] = [];
@@ -79,7 +79,11 @@ export function aRecord(opts: { twisted?: boolean; features?: number; throttleOv
 		features,
 		seeds: [1, 2],
 		durationSeconds: 60,
-		kernel: [20, 40, 80].map((k) => ({ nnzPerRow: k, features, nsPerUpdate: 200 + 40 * k, rowBytes: 4 * 2 ** 20 })),
+		kernel: [
+			...[20, 40, 80].map((k) => ({ nnzPerRow: k, features, nsPerUpdate: 200 + 40 * k, rowBytes: 4 * 2 ** 20 })),
+			// rows beyond the CPU caches: +1000 ns per update at 32 MiB, +2000 ns at 128 MiB
+			...(opts.footprint ? [1000, 2000].map((extra, i) => ({ nnzPerRow: K, features, nsPerUpdate: NS + extra, rowBytes: [32, 128][i] * 2 ** 20 })) : [])
+		],
 		decode: { binaryMBps: 2000, textMBps: 300, gunzipMBps: 400 },
 		runs,
 		notes: []

@@ -95,6 +95,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		const real = ds.valueKind === 'real';
 		for (const d of dims) for (const kk of ks) kernel.push(measureKernel(kk, d, { real, seconds: 0.04 }));
 		const kernelFit = fitKernelLines(kernel);
+		// the same step over row sets beyond the CPU caches: rows of a large dataset sit further out in the memory hierarchy
+		for (const rowBytes of [32 << 20, 128 << 20]) kernel.push(measureKernel(k, features, { real, seconds: 0.06, rowBytes }));
 		const nsCal = kernelNs(kernelFit, k, features);
 
 		const files = new Map<string, string>();

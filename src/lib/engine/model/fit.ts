@@ -8,6 +8,7 @@
 import type { CalibrationRecord, CalibrationRun, KernelPoint } from '../calibrate/record.js';
 import type { StrategyName } from '../types.js';
 import { fitLinear, evalLinear, FREE, type LinearFit, type SlopeBounds } from './least-squares.js';
+import { rowsInRamBytes } from './sizes.js';
 
 /** ns per update = a + b·k at one feature dimension. */
 export interface KernelLine {
@@ -41,9 +42,17 @@ export interface StrategyFit {
 	updatesPerReadRange: [number, number];
 }
 
+/** Kernel ns per update at the plan's (k, d) against ln bytes of the row set, non-decreasing. */
+export interface FootprintPoint {
+	lnBytes: number;
+	ns: number;
+}
+
 export interface FittedModel {
 	record: CalibrationRecord;
+	/** per-update cost lines from the default (2–4 MiB) row sets */
 	kernel: KernelLine[];
+	footprint: FootprintPoint[];
 	strategies: Partial<Record<StrategyName, StrategyFit>>;
 }
 
@@ -95,6 +104,38 @@ export function fitKernelLines(points: KernelPoint[]): KernelLine[] {
 	return lines.sort((x, y) => x.lnD - y.lnD);
 }
 
+/** kernel points over row sets below this are the default ones (2–4 MiB) */
+const DEFAULT_ROW_SET_LIMIT = 8 << 20;
+
+function fitFootprint(points: KernelPoint[], k: number, d: number): FootprintPoint[] {
+	const base = points.find((p) => (p.rowBytes ?? 0) < DEFAULT_ROW_SET_LIMIT)?.rowBytes;
+	const at = points
+		.filter((p) => p.features === d && Math.round(p.nnzPerRow) === Math.round(k))
+		.map((p) => ({ lnBytes: Math.log(p.rowBytes ?? base ?? 1), ns: p.nsPerUpdate }))
+		.sort((a, b) => a.lnBytes - b.lnBytes);
+	// more bytes of rows never make an update cheaper (measurement noise aside)
+	for (let i = 1; i < at.length; i++) at[i].ns = Math.max(at[i].ns, at[i - 1].ns);
+	return at;
+}
+
+/**
+ * Extra ns per update when the rows take `bytes` instead of the default kernel row set: the
+ * memory stalls of fetching rows from further out, added to (not multiplied with) the rest of
+ * a solver's per-update work. Interpolated in ln bytes, flat beyond the largest measured set.
+ */
+export function extraNsForRows(curve: FootprintPoint[], bytes: number): number {
+	if (curve.length < 2) return 0;
+	const x = Math.log(Math.max(1, bytes));
+	if (x <= curve[0].lnBytes) return 0;
+	for (let i = 1; i < curve.length; i++) {
+		if (x <= curve[i].lnBytes) {
+			const t = (x - curve[i - 1].lnBytes) / (curve[i].lnBytes - curve[i - 1].lnBytes);
+			return curve[i - 1].ns + t * (curve[i].ns - curve[i - 1].ns) - curve[0].ns;
+		}
+	}
+	return curve[curve.length - 1].ns - curve[0].ns;
+}
+
 /** Kernel ns per update at (k, d), interpolated in ln d and held flat outside the measured range. */
 export function kernelNs(kernel: KernelLine[], k: number, d: number): number {
 	const lnD = Math.log(d);
@@ -129,7 +170,7 @@ function fitCost(model: number[], measured: number[]): { ratio: number; fixed: n
 	return { ratio, fixed: f.coef[0] };
 }
 
-function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: StrategyName): StrategyFit | undefined {
+function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: FootprintPoint[], strategy: StrategyName): StrategyFit | undefined {
 	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0);
 	if (runs.length === 0) return undefined;
 	const b = boundsFor(strategy);
@@ -139,7 +180,12 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], strategy: Str
 	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
 	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
 	const computeModel = runs.map((r) => r.updates * tKernel);
-	const { ratio: costRatio, fixed: computeFixed } = fitCost(computeModel, runs.map((r) => r.computeSeconds));
+	// the rows' own memory stalls at each run's size come off before the ratio is fitted
+	const stalls = runs.map((r) => r.updates * extraNsForRows(footprint, rowsInRamBytes(r.rows, k, rec.plan.dataset.valueKind)) * 1e-9);
+	const { ratio: costRatio, fixed: computeFixed } = fitCost(
+		computeModel,
+		runs.map((r, i) => Math.max(r.computeSeconds * 0.1, r.computeSeconds - stalls[i]))
+	);
 	const implied = (r: CalibrationRun) => (r.passes * r.bytesOnDisk) / Math.max(1e-6, r.readSeconds);
 	const free = runs.filter((r) => r.diskMBps === null);
 	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
@@ -191,13 +237,15 @@ const cache = new WeakMap<CalibrationRecord, FittedModel>();
 export function fitModel(rec: CalibrationRecord): FittedModel {
 	const hit = cache.get(rec);
 	if (hit) return hit;
-	const kernel = fitKernelLines(rec.kernel);
+	const base = rec.kernel.filter((p) => (p.rowBytes ?? 0) < DEFAULT_ROW_SET_LIMIT);
+	const kernel = fitKernelLines(base);
+	const footprint = fitFootprint(rec.kernel, Math.min(rec.plan.dataset.nnzPerRow, rec.features), rec.features);
 	const strategies: FittedModel['strategies'] = {};
 	for (const s of ['memory', 'block', 'selective', 'stream'] as const) {
-		const f = fitStrategy(rec, kernel, s);
+		const f = fitStrategy(rec, kernel, footprint, s);
 		if (f) strategies[s] = f;
 	}
-	const model = { record: rec, kernel, strategies };
+	const model = { record: rec, kernel, footprint, strategies };
 	cache.set(rec, model);
 	return model;
 }

@@ -8,8 +8,8 @@
 import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
 import type { CalibrationRecord } from '../calibrate/record.js';
-import { fitModel, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
-import { binaryBytes, bytesOnDisk, formatBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
+import { extraNsForRows, fitModel, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
+import { binaryBytes, bytesOnDisk, formatBytes, rowsInRamBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
 
@@ -50,6 +50,8 @@ interface Context {
 	usable: number;
 	memoryBytes: number | undefined;
 	tUpdate: number;
+	/** extra seconds per update for rows of the dataset's size in RAM (memory stalls), at the target's core speed */
+	tStall: number;
 	widening: number;
 	conversion: { seconds: number; passes: number };
 }
@@ -97,7 +99,7 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const updates = rows * Math.exp(evalLinear(f.updatesPerRow, x));
 	const hit = s === 'memory' ? 1 - Math.min(1, rows / Math.max(updates, rows)) : 1 - Math.min(1, Math.exp(evalLinear(f.missRate, x)));
 	const read = passesEngine * ctx.binBytes * perByte;
-	const compute = updates * ctx.tUpdate * f.costRatio;
+	const compute = updates * (ctx.tUpdate * f.costRatio + ctx.tStall);
 	const overlapShare = m.cores >= 2 ? f.overlap : 0;
 	const overlap = overlapShare * Math.min(read, compute);
 	const prepare = ctx.conversion.seconds + read / passesEngine;
@@ -190,6 +192,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		memoryBytes: opts.memoryBytes,
 		// per update on the target: the kernel at (k, d) at the target's core speed
 		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * 1e-9 * cpuScale,
+		// all rows count, also for the out-of-core strategies: conservative, and more RAM then never costs time
+		tStall: extraNsForRows(model.footprint, rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind)) * 1e-9 * cpuScale,
 		widening,
 		conversion: conversion(plan, rec, rows, cpuScale, binBytes)
 	};
