@@ -62,8 +62,10 @@ export interface StreamReport extends TrainReport {
 	cacheBytes: number;
 	/** most cache bytes ever holding rows (live, evicted-but-not-compacted, or being filled) */
 	peakResidentBytes: number;
-	/** reader throughput while training, MB/s (1e6 bytes) */
+	/** reader throughput while training, MB/s (1e6 bytes): bytes read / training wall time */
 	readerMBps: number;
+	/** reader throughput while it reads, MB/s: bytes read / its time inside reads (throttle included) */
+	readerBusyMBps: number;
 }
 
 export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
@@ -445,6 +447,7 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		cacheBytes,
 		peakResidentBytes: peakResidentWords * (real ? 8 : 4),
 		readerMBps: trainSeconds > 0 ? stats[0] / 1e6 / trainSeconds : 0,
+		readerBusyMBps: readerMs > 0 ? stats[0] / 1e3 / readerMs : 0,
 		...(o.keepWeights ? { w } : {})
 	};
 }
