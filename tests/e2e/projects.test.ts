@@ -1,8 +1,8 @@
 /** In a real browser: sign in through the inbox, create a project, see it listed; a viewer cannot create. */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
-import { launch } from '../helpers/browser.js';
-import { baseUrl, latestMail, linkIn } from '../helpers/session.js';
+import { launch, signInThroughInbox as signIn } from '../helpers/browser.js';
+import { baseUrl } from '../helpers/session.js';
 import { addMember, closeDb, makeTeam, makeUser, unique } from '../helpers/factories.js';
 
 let browser: Browser;
@@ -16,19 +16,7 @@ afterAll(async () => {
 	await closeDb();
 });
 
-async function signInThroughInbox(email: string) {
-	const context = await browser.newContext();
-	const page = await context.newPage();
-	await page.goto(`${baseUrl()}/`);
-	await page.waitForURL(/\/signin/);
-	const before = Date.now();
-	await page.getByLabel('Work e-mail').fill(email);
-	await page.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
-	await page.waitForURL(/\/signin\/check-email/);
-	await page.goto(linkIn(await latestMail(email, before)));
-	await page.waitForURL(/\/teams\/[^/]+\/projects/);
-	return { context, page };
-}
+const signInThroughInbox = (email: string) => signIn(browser, email);
 
 describe('projects in the browser', () => {
 	it('signs in by magic link, creates a project and sees it listed', async () => {

@@ -20,15 +20,24 @@ export const load = (async (event) => {
 	let fromUpload: { id: string; fileName: string; rows: number } | null = null;
 	const uploadId = event.url.searchParams.get('fromUpload');
 	if (uploadId) {
-		// The sample's profile fills the dataset section; the full row count is the user's to give.
+		// The sample's shape fills the dataset section; the full row count is the user's to give (?rows=).
 		const res = await event.fetch(`/api/uploads/${encodeURIComponent(uploadId)}`);
-		if (res.ok) {
-			const { upload } = await res.json();
-			const p = upload?.profile;
-			if (p) {
-				initial.dataset = { ...initial.dataset, features: p.maxFeature ?? p.features ?? initial.dataset.features, nnzPerRow: Math.max(0.001, p.nnzMean ?? initial.dataset.nnzPerRow), positiveFraction: Math.min(0.999, Math.max(0.001, p.positiveFraction)), valueKind: p.valueKind ?? initial.dataset.valueKind, format: 'text' };
-				fromUpload = { id: upload.id, fileName: upload.fileName, rows: p.rows };
-			}
+		const upload = res.ok ? (await res.json()).upload : null;
+		const f = upload?.planFields;
+		if (f) {
+			const rows = Number(event.url.searchParams.get('rows'));
+			const fullRows = Number.isInteger(rows) && rows >= 1 ? rows : initial.dataset.rows;
+			initial.dataset = {
+				rows: fullRows,
+				features: f.features,
+				nnzPerRow: Math.min(f.nnzPerRow, f.features),
+				positiveFraction: Math.min(0.999, Math.max(0.001, f.positiveFraction)),
+				valueKind: f.valueKind,
+				format: f.format,
+				compressed: f.compressed,
+				...(f.bytesPerRow > 0 && !f.compressed && { bytesOnDisk: Math.round(fullRows * f.bytesPerRow) })
+			};
+			fromUpload = { id: upload.id, fileName: upload.fileName, rows: upload.profile?.rows ?? 0 };
 		}
 	}
 	return {
