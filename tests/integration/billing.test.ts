@@ -122,4 +122,13 @@ describe('billing', () => {
 		expect(api.status).toBe(402);
 		expect((await api.json()).error.code).toBe('limit_reached');
 	});
+
+	it('lets only one of several concurrent creates take the last free project slot', async () => {
+		const t = await teamWithOwner('Racing');
+		for (let i = 0; i < 9; i++) await makeProject(t.teamId);
+		const api = client(t.owner);
+		const answers = await Promise.all(Array.from({ length: 4 }, (_, i) => api('/api/projects', { method: 'POST', json: { teamId: t.teamId, name: unique(`race ${i}`) } })));
+		expect(answers.map((r) => r.status).sort()).toEqual([201, 402, 402, 402]);
+		expect((await (await api(`/api/projects?teamId=${t.teamId}`)).json()).projects).toHaveLength(10);
+	});
 });

@@ -64,11 +64,10 @@ export async function create(teamId: string, inviter: Inviter, input: InviteInpu
 		.innerJoin(users, eq(users.id, memberships.userId))
 		.where(and(eq(memberships.teamId, teamId), sql`lower(${users.email}) = ${input.email}`));
 	if (member) throw new ApiError(409, 'already_member', `${input.email} is already a member of this team.`, { email: 'Already a member of this team.' });
-	await limits.assert(teamId, 'members', 'email');
 	const token = newToken();
 	try {
-		// The row commits only if the mail went out, so a failed send leaves nothing half-done.
-		return await db.transaction(async (tx) => {
+		// The row commits only if the mail went out, so a failed send leaves nothing half-done; the member limit is checked under the same lock.
+		return await limits.within(teamId, 'members', 'email', async (tx) => {
 			const [row] = await tx.insert(invitations).values({ teamId, email: input.email, role: input.role, tokenHash: hashToken(token), invitedBy: inviter.id, expiresAt: expiry() }).returning();
 			await sendLink(teamId, inviter, input.email, input.role, token, origin);
 			return row;

@@ -35,9 +35,11 @@ function isUniqueViolation(e: unknown): boolean {
 }
 
 export async function create(teamId: string, userId: string, input: ProjectCreate) {
-	await limits.assert(teamId, 'projects', 'name');
 	try {
-		const [row] = await db.insert(projects).values({ teamId, createdBy: userId, name: input.name, description: input.description }).returning({ id: projects.id });
+		// the Free project limit is checked under a per-team lock, in the transaction that inserts
+		const [row] = await limits.within(teamId, 'projects', 'name', (tx) =>
+			tx.insert(projects).values({ teamId, createdBy: userId, name: input.name, description: input.description }).returning({ id: projects.id })
+		);
 		return (await get(row.id))!;
 	} catch (e) {
 		if (isUniqueViolation(e)) throw duplicate(input.name);

@@ -19,26 +19,29 @@ export interface LimitCheck {
 	message: string;
 }
 
-export async function tierOf(teamId: string): Promise<Tier> {
-	const [row] = await db.select({ status: teamBilling.status }).from(teamBilling).where(eq(teamBilling.teamId, teamId));
+type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
+type Q = typeof db | Tx;
+
+export async function tierOf(teamId: string, q: Q = db): Promise<Tier> {
+	const [row] = await q.select({ status: teamBilling.status }).from(teamBilling).where(eq(teamBilling.teamId, teamId));
 	return tierFor(row?.status);
 }
 
 /** How much of a limit the team uses now. Members count open, unexpired invitations too. */
-export async function usage(teamId: string, kind: LimitKind): Promise<number> {
+export async function usage(teamId: string, kind: LimitKind, q: Q = db): Promise<number> {
 	if (kind === 'projects') {
-		const [r] = await db.select({ n: count() }).from(projects).where(eq(projects.teamId, teamId));
+		const [r] = await q.select({ n: count() }).from(projects).where(eq(projects.teamId, teamId));
 		return r.n;
 	}
 	if (kind === 'members') {
-		const [m] = await db.select({ n: count() }).from(memberships).where(eq(memberships.teamId, teamId));
-		const [i] = await db
+		const [m] = await q.select({ n: count() }).from(memberships).where(eq(memberships.teamId, teamId));
+		const [i] = await q
 			.select({ n: count() })
 			.from(invitations)
 			.where(and(eq(invitations.teamId, teamId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())));
 		return m.n + i.n;
 	}
-	const [c] = await db
+	const [c] = await q
 		.select({ n: count() })
 		.from(calibrationJobs)
 		.where(and(eq(calibrationJobs.teamId, teamId), gte(calibrationJobs.createdAt, sql`date_trunc('month', now() at time zone 'utc') at time zone 'utc'`)));
@@ -54,10 +57,10 @@ function explain(kind: LimitKind, tier: Tier, used: number, limit: number): stri
 }
 
 /** May the team add one more of `kind`? */
-export async function check(teamId: string, kind: LimitKind): Promise<LimitCheck> {
-	const tier = await tierOf(teamId);
+export async function check(teamId: string, kind: LimitKind, q: Q = db): Promise<LimitCheck> {
+	const tier = await tierOf(teamId, q);
 	const limit = tier.limits[kind];
-	const used = await usage(teamId, kind);
+	const used = await usage(teamId, kind, q);
 	const allowed = limit === null || used < limit;
 	return { kind, tier: tier.name, used, limit, allowed, message: allowed ? '' : explain(kind, tier, used, limit!) };
 }
@@ -66,6 +69,19 @@ export async function check(teamId: string, kind: LimitKind): Promise<LimitCheck
 export async function assert(teamId: string, kind: LimitKind, field?: string): Promise<void> {
 	const c = await check(teamId, kind);
 	if (!c.allowed) throw new ApiError(402, 'limit_reached', c.message, field ? { [field]: c.message } : undefined);
+}
+
+/**
+ * Check and add in one transaction that holds the team's lock for `kind`, so concurrent adds
+ * cannot pass the limit together. `add` runs only when one more is allowed.
+ */
+export async function within<T>(teamId: string, kind: LimitKind, field: string, add: (tx: Tx) => Promise<T>): Promise<T> {
+	return db.transaction(async (tx) => {
+		await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`limit:${kind}:${teamId}`}))`);
+		const c = await check(teamId, kind, tx);
+		if (!c.allowed) throw new ApiError(402, 'limit_reached', c.message, { [field]: c.message });
+		return add(tx);
+	});
 }
 
 /** Usage of every limit, for the billing page. */
