@@ -97,4 +97,15 @@ describe('webhook delivery', () => {
 		const other = { id: `evt_${unique('other')}`, object: 'event', type: 'charge.succeeded', created: t0, data: { object: { id: 'ch_1' } } };
 		expect((await (await deliver(JSON.stringify(other))).json()).outcome).toBe('ignored');
 	});
+
+	it('finds the team of a new subscription by its customer, and records events for unknown teams without effect', async () => {
+		const team = (await makeTeam(unique('By customer'))).id;
+		const customer = `cus_${unique('c').replace(/-/g, '')}`;
+		await db().insert(teamBilling).values({ teamId: team, stripeCustomerId: customer });
+		const made = subscriptionEvent('customer.subscription.created', { ...sub('active', 3), id: `sub_${unique('n').replace(/-/g, '')}`, customer, metadata: {} });
+		expect((await (await deliver(JSON.stringify(made))).json()).outcome).toBe('applied');
+		expect((await db().select().from(teamBilling).where(eq(teamBilling.teamId, team)))[0]).toMatchObject({ status: 'active', seats: 3 });
+		const stray = subscriptionEvent('customer.subscription.created', { ...sub('active', 1), id: 'sub_unknown', customer: 'cus_unknown', metadata: { teamId: "x' OR 1=1" } });
+		expect((await (await deliver(JSON.stringify(stray))).json()).outcome).toBe('no_team');
+	});
 });

@@ -33,6 +33,12 @@ type Tx = Parameters<Parameters<typeof db.transaction>[0]>[0];
 async function teamForSubscription(tx: Tx, sub: Stripe.Subscription): Promise<string | null> {
 	const [known] = await tx.select({ teamId: teamBilling.teamId }).from(teamBilling).where(eq(teamBilling.stripeSubscriptionId, sub.id)).for('update');
 	if (known) return known.teamId;
+	// a subscription made outside the app (e.g. in Stripe's dashboard) for a customer we know
+	const customer = typeof sub.customer === 'string' ? sub.customer : sub.customer?.id;
+	if (customer) {
+		const [byCustomer] = await tx.select({ teamId: teamBilling.teamId }).from(teamBilling).where(eq(teamBilling.stripeCustomerId, customer)).for('update');
+		if (byCustomer) return byCustomer.teamId;
+	}
 	const claimed = sub.metadata?.teamId;
 	if (!claimed || !UUID.test(claimed)) return null;
 	const [team] = await tx.select({ id: teams.id }).from(teams).where(eq(teams.id, claimed));
