@@ -82,6 +82,8 @@ describe('planning in the browser', () => {
 		await page.getByTestId('calibration-progress').waitFor();
 		await page.getByTestId('calibration-done').waitFor({ timeout: 90_000 });
 		await expect.poll(() => page.getByTestId('basis').innerText(), { timeout: 10_000 }).toContain('synthetic data shaped like this plan');
+		// the new calibration's convergence traces are drawn
+		await page.locator('[data-testid="convergence-chart"] path').first().waitFor();
 	});
 
 	it('uses an uploaded sample in a plan', async () => {

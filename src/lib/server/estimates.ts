@@ -22,11 +22,29 @@ export interface WhatIf {
 	points: WhatIfPoint[];
 }
 
+export interface ConvergenceCurve {
+	strategy: StrategyName;
+	rows: number;
+	points: { seconds: number; gap: number }[];
+}
+
 export interface EstimateResponse {
 	estimate: Estimate;
 	calibration: calibrations.CalibrationMeta;
 	whatIf: { ramGiB: WhatIf; diskMBps: WhatIf };
+	/** how the calibration's largest run of each strategy converged */
+	convergence: ConvergenceCurve[];
 	caution: string;
+}
+
+function convergence(record: CalibrationRecord): ConvergenceCurve[] {
+	const best = new Map<StrategyName, ConvergenceCurve>();
+	for (const run of record.runs) {
+		if (!run.trace?.length) continue;
+		const seen = best.get(run.strategy);
+		if (!seen || run.rows > seen.rows) best.set(run.strategy, { strategy: run.strategy, rows: run.rows, points: run.trace.filter((p) => p.gap > 0) });
+	}
+	return [...best.values()];
 }
 
 const RAM_GRID = [2, 4, 8, 16, 32, 64, 128, 256, 512, 1024];
@@ -61,6 +79,7 @@ export function estimateOn(plan: Plan, resolved: calibrations.ResolvedCalibratio
 			ramGiB: { current: plan.machine.ramGiB, points: curve(plan, record, withCurrent(RAM_GRID, plan.machine.ramGiB), (p, v) => ({ ...p, machine: { ...p.machine, ramGiB: v } })) },
 			diskMBps: { current: plan.machine.diskMBps, points: curve(plan, record, withCurrent(diskGrid(plan), plan.machine.diskMBps), (p, v) => ({ ...p, machine: { ...p.machine, diskMBps: v } })) }
 		},
+		convergence: convergence(record),
 		caution: CAUTION
 	};
 }

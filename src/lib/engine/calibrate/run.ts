@@ -170,7 +170,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 					peakMemoryBytes: rep.peakMemoryBytes,
 					outerIterations: rep.outerIterations,
 					gap: rep.gap,
-					referenceNs
+					referenceNs,
+					// at most 40 (seconds, gap) points: enough for the convergence chart, small in the record
+					trace: rep.trace.filter((_, i, all) => all.length <= 40 || i % Math.ceil(all.length / 40) === 0 || i === all.length - 1)
 				};
 				runs.push(run);
 				progress(s, `${s}: ${rows} rows, cache fraction ${run.cacheFraction.toFixed(3)}, ${rep.passes} passes, ${rep.wallSeconds.toFixed(2)} s`);
