@@ -112,4 +112,43 @@ describe('team pages in the browser', () => {
 		}
 		await context.close();
 	});
+
+	it('takes a new person from the invitation mail through sign-in back to the invitation, and into the team', async () => {
+		const team = await makeTeam(unique('Inviting team'));
+		const owner = await makeUser('inviting-owner');
+		await addMember(team.id, owner.id, 'owner');
+		const ownerContext = await browser.newContext();
+		const ownerPage = await ownerContext.newPage();
+		await signInThroughInbox(ownerPage, owner.email!);
+		await ownerPage.goto(`${baseUrl()}/teams/${team.id}/members`);
+		const invitee = `${unique('joiner')}@example.org`;
+		const sent = Date.now();
+		await ownerPage.getByLabel('E-mail', { exact: true }).fill(invitee);
+		await ownerPage.locator('form[action="?/invite"] select[name=role]').selectOption('viewer');
+		await ownerPage.getByRole('button', { name: 'Send invitation' }).click();
+		await ownerPage.getByTestId('invitation-list').getByText(invitee).waitFor();
+
+		const context = await browser.newContext();
+		const page = await context.newPage();
+		const violations = await watch(page);
+		await page.goto(linkIn(await latestMail(invitee, sent)));
+		await page.getByRole('link', { name: 'Sign in to accept' }).click();
+		await page.waitForURL(/\/signin\?redirectTo=/);
+		const asked = Date.now();
+		await page.getByLabel('Work e-mail').fill(invitee);
+		await page.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+		await page.waitForURL(/\/signin\/check-email/);
+		await page.goto(linkIn(await latestMail(invitee, asked)));
+		await page.waitForURL(/\/invite\//);
+		await page.getByRole('button', { name: /Accept and join/ }).click();
+		await page.waitForURL(new RegExp(`/teams/${team.id}/projects`));
+		expect(await page.getByText('you are viewer').count()).toBe(1);
+		expect(await violations()).toEqual([]);
+
+		await ownerPage.reload();
+		expect(await ownerPage.getByTestId('member-list').getByText(invitee).count()).toBe(1);
+		expect(await ownerPage.getByTestId('invitation-row').count()).toBe(0);
+		await context.close();
+		await ownerContext.close();
+	});
 });
