@@ -70,6 +70,8 @@ export default async function setup(project: TestProject) {
 	project.provide('smtpUrl', `smtp://127.0.0.1:${smtpPort}`);
 	project.provide('pgDataDir', dataDir);
 	project.provide('uploadDir', uploadDir);
+	// workers that tests start (services.startWorker passes process.env on) must read samples where the app wrote them
+	process.env.UPLOAD_DIR = uploadDir;
 
 	return async () => {
 		app.kill('SIGTERM');

@@ -1,6 +1,6 @@
 /** Dataset samples for the web app: receive to disk, list, read; the worker parses (uploads/parse-job.ts). */
 import { randomUUID } from 'node:crypto';
-import { mkdir } from 'node:fs/promises';
+import { mkdir, unlink } from 'node:fs/promises';
 import { join } from 'node:path';
 import { and, desc, eq } from 'drizzle-orm';
 import { env } from '$env/dynamic/private';
@@ -11,7 +11,7 @@ import * as jobs from '../jobs/index.js';
 import { QUEUE_PARSE_UPLOAD } from '../jobs/config.js';
 import type { UploadParams } from '$lib/schemas/upload.js';
 import { BAD_LINE_SHARE, formatLimit, uploadDir, uploadLimitBytes } from './config.js';
-import { receive, UploadError } from './receive.js';
+import { discard, receive, UploadError } from './receive.js';
 import type { SampleProfile } from './parse-sample.js';
 
 export { BAD_LINE_SHARE, formatLimit };
@@ -42,7 +42,10 @@ export async function getInTeam(id: string, teamId: string): Promise<Upload | nu
 export async function create(teamId: string, userId: string, params: UploadParams, request: Request): Promise<Upload> {
 	const limit = limitBytes();
 	const declared = Number(request.headers.get('content-length') ?? NaN);
-	if (declared > limit) throw new ApiError(413, 'too_large', `The file is larger than the upload limit of ${formatLimit(limit)}.`, { file: `at most ${formatLimit(limit)}` });
+	if (declared > limit) {
+		await discard(request.body, limit + 2 ** 20);
+		throw new ApiError(413, 'too_large', `The file is larger than the upload limit of ${formatLimit(limit)}.`, { file: `at most ${formatLimit(limit)}` });
+	}
 	const id = randomUUID();
 	const dir = join(uploadDir(env), teamId);
 	await mkdir(dir, { recursive: true, mode: 0o750 });
@@ -53,11 +56,19 @@ export async function create(teamId: string, userId: string, params: UploadParam
 		if (err instanceof UploadError) throw new ApiError(err.status, err.code, err.message, { file: err.message });
 		throw err;
 	}
-	const [row] = await db
-		.insert(uploads)
-		.values({ id, teamId, fileName: params.fileName, kind: params.kind, labelColumn: params.kind === 'csv' ? params.labelColumn : null, gzip: got.gzip, bytes: got.bytes, storedPath: `${teamId}/${id}`, createdBy: userId })
-		.returning();
-	await jobs.send(QUEUE_PARSE_UPLOAD, { uploadId: row.id });
+	let row: Upload;
+	try {
+		[row] = await db
+			.insert(uploads)
+			.values({ id, teamId, fileName: params.fileName, kind: params.kind, labelColumn: params.kind === 'csv' ? params.labelColumn : null, gzip: got.gzip, bytes: got.bytes, storedPath: `${teamId}/${id}`, createdBy: userId })
+			.returning();
+		await jobs.send(QUEUE_PARSE_UPLOAD, { uploadId: row.id });
+	} catch (err) {
+		// no sample is kept that nobody will parse
+		await unlink(join(dir, id)).catch(() => {});
+		await db.delete(uploads).where(eq(uploads.id, id)).catch(() => {});
+		throw err;
+	}
 	return row;
 }
 

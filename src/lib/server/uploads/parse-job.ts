@@ -29,7 +29,9 @@ export async function parseUploadJob(db: Db, uploadId: string, log: (line: strin
 	try {
 		profile = u.kind === 'csv' ? await parseCsvSample(path, u.labelColumn ?? '') : await parseSvmlightSample(path);
 	} catch (err) {
-		const message = (err as Error).message;
+		const missing = (err as { code?: string }).code === 'ENOENT';
+		// a missing file is a setup problem (web app and worker disagree on UPLOAD_DIR); never show server paths
+		const message = missing ? 'the stored file is missing where the worker looks for it (the web app and the worker need the same UPLOAD_DIR); upload it again' : (err as Error).message;
 		await db.update(uploads).set({ status: 'rejected', error: message, updatedAt: new Date() }).where(eq(uploads.id, u.id));
 		return log(`upload ${u.id}: rejected (${message})`);
 	}

@@ -41,7 +41,26 @@ class Counter extends Transform {
 }
 
 /** First bytes of the stream, and a stream that yields them again followed by the rest. */
-async function peek(body: ReadableStream<Uint8Array>, want: number): Promise<{ head: Buffer; stream: Readable; drain: () => Promise<void> }> {
+/**
+ * Read and drop what the client still sends, so it gets our answer: a server that closes a
+ * connection with unread data in it makes the client see a reset instead. Past maxBytes the
+ * web server's own body limit (BODY_SIZE_LIMIT) ends the request anyway.
+ */
+async function dropRest(reader: ReadableStreamDefaultReader<Uint8Array>, maxBytes: number): Promise<void> {
+	let dropped = 0;
+	while (dropped <= maxBytes) {
+		const { value, done } = await reader.read().catch(() => ({ value: undefined, done: true }));
+		if (done) return;
+		dropped += value?.length ?? 0;
+	}
+}
+
+/** Drop a whole body that is refused before reading it. */
+export async function discard(body: ReadableStream<Uint8Array> | null, maxBytes: number): Promise<void> {
+	if (body && !body.locked) await dropRest(body.getReader(), maxBytes);
+}
+
+async function peek(body: ReadableStream<Uint8Array>, want: number): Promise<{ head: Buffer; stream: Readable; drain: (maxBytes: number) => Promise<void> }> {
 	const reader = body.getReader();
 	const parts: Buffer[] = [];
 	let have = 0;
@@ -65,15 +84,7 @@ async function peek(body: ReadableStream<Uint8Array>, want: number): Promise<{ h
 			yield Buffer.from(value);
 		}
 	}
-	/** read and drop what the client still sends (up to 1 MiB), so it gets our answer instead of a reset connection */
-	const drain = async () => {
-		let dropped = 0;
-		while (!ended && dropped < 2 ** 20) {
-			const { value, done } = await reader.read().catch(() => ({ value: undefined, done: true }));
-			if (done) return;
-			dropped += value?.length ?? 0;
-		}
-	};
+	const drain = (maxBytes: number) => (ended ? Promise.resolve() : dropRest(reader, maxBytes));
 	return { head, stream: Readable.from(replay(), { objectMode: false }), drain };
 }
 
@@ -102,7 +113,7 @@ export async function receive(body: ReadableStream<Uint8Array> | null, path: str
 		else await pipeline(stream, sent, stored, out);
 	} catch (err) {
 		await unlink(path).catch(() => {});
-		await drain();
+		await drain(limit + 2 ** 20);
 		if (err instanceof UploadError) throw err;
 		const code = (err as { code?: string }).code ?? '';
 		if (code.startsWith('Z_')) throw new UploadError(400, 'bad_gzip', `The file starts like gzip but does not inflate (${(err as Error).message}).`);

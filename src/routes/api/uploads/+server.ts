@@ -3,6 +3,7 @@ import { api, ApiError, fieldErrors } from '$lib/server/http.js';
 import * as guard from '$lib/server/guard.js';
 import * as uploads from '$lib/server/uploads/index.js';
 import { uploadParams } from '$lib/schemas/upload.js';
+import { discard } from '$lib/server/uploads/receive.js';
 
 /** GET /api/uploads?teamId=… — the team's samples and the upload limit. */
 export const GET = api(async (event) => {
@@ -14,13 +15,19 @@ export const GET = api(async (event) => {
 
 /** POST /api/uploads?teamId=…&fileName=…&kind=svmlight|csv[&labelColumn=…] — the file itself is the body (gzip or plain). */
 export const POST = api(async (event) => {
-	await guard.user(event);
-	const parsed = uploadParams.safeParse(Object.fromEntries(event.url.searchParams));
-	if (!parsed.success) {
-		const fields = fieldErrors(parsed.error);
-		throw new ApiError(400, 'invalid', `Invalid ${Object.keys(fields).join(', ')}: ${Object.values(fields)[0]}`, fields);
+	try {
+		await guard.user(event);
+		const parsed = uploadParams.safeParse(Object.fromEntries(event.url.searchParams));
+		if (!parsed.success) {
+			const fields = fieldErrors(parsed.error);
+			throw new ApiError(400, 'invalid', `Invalid ${Object.keys(fields).join(', ')}: ${Object.values(fields)[0]}`, fields);
+		}
+		const { team, user } = await guard.team(event, parsed.data.teamId, 'edit');
+		const row = await uploads.create(team.id, user.id, parsed.data, event.request);
+		return json({ upload: uploads.view(row) }, { status: 202 });
+	} catch (e) {
+		// refused before the body was read: take it in (bounded) so the client sees the answer, not a reset
+		await discard(event.request.body, 2 ** 20);
+		throw e;
 	}
-	const { team, user } = await guard.team(event, parsed.data.teamId, 'edit');
-	const row = await uploads.create(team.id, user.id, parsed.data, event.request);
-	return json({ upload: uploads.view(row) }, { status: 202 });
 });
