@@ -26,9 +26,17 @@ async function readForm(req: IncomingMessage): Promise<URLSearchParams> {
 	return new URLSearchParams(Buffer.concat(chunks).toString('utf8'));
 }
 
+/** Like the fake itself: a test secret key as a bearer token or as the basic-auth user name. */
+function testKey(header: string | undefined): boolean {
+	if (!header) return false;
+	if (header.startsWith('Bearer ')) return header.slice(7).startsWith('sk_test_');
+	if (header.startsWith('Basic ')) return Buffer.from(header.slice(6), 'base64').toString('utf8').startsWith('sk_test_');
+	return false;
+}
+
 /** POST /v1/subscriptions/:id (cancel_at_period_end, metadata) and DELETE /v1/subscriptions/:id (cancel now). */
 async function subscriptionRoute(req: IncomingMessage, res: ServerResponse, id: string): Promise<void> {
-	if (!/^Bearer sk_test_/.test(req.headers.authorization ?? '')) return send(res, 401, { error: { type: 'invalid_request_error', message: 'Invalid API Key provided.' } });
+	if (!testKey(req.headers.authorization)) return send(res, 401, { error: { type: 'invalid_request_error', message: 'Invalid API Key provided.' } });
 	let sub;
 	try {
 		sub = fakeSubscriptions.subscriptions.retrieve(String(req.headers['stripe-account'] ?? 'acct_default'), id, 'id');
