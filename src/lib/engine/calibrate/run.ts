@@ -191,7 +191,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 					if (ladder.length >= 2) growth = Math.max(2, last / Math.max(1e-3, ladder[ladder.length - 2].wallSeconds));
 					const next = Math.min(ds.rows, maxRows, rows * 2);
 					const spent = elapsed() - started;
-					if (next <= rows || spent + last * growth * (1 + extras / growth) > share) break;
+					// growth is per doubling; the last rung may be a partial step up to the plan's rows
+					const nextCost = last * growth ** Math.log2(next / rows);
+					if (next <= rows || spent + nextCost + extras * last > share) break;
 					rows = next;
 				}
 			} catch (err) {
