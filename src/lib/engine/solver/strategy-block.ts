@@ -44,9 +44,11 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 	// the sequential reader's two buffers (one read ahead) are part of the budget
 	const chunkBytes = Math.max(64 * 1024, Math.min(8 << 20, Math.floor(o.memoryBytes / 32)));
 	const free = o.memoryBytes - state - 2 * chunkBytes;
-	// selective: block + cache are joined into one working set, so they get half of what is left
-	const blockBudget = selective ? (free / 2) * (1 - o.cacheFraction) : o.compress ? free / 2 : free;
-	const cacheBudget = selective ? (free / 2) * o.cacheFraction : 0;
+	// selective: block + cache are joined into one working set (a second copy), with 4 bytes of id per
+	// row (at most 4/21 of the rows' bytes), and a compressed block's file bytes while it is unpacked
+	const share = free / (2 + 4 / 21 + (o.compress ? 1 - o.cacheFraction : 0));
+	const blockBudget = selective ? share * (1 - o.cacheFraction) : o.compress ? free / 2 : free;
+	const cacheBudget = selective ? share * o.cacheFraction : 0;
 	if (blockBudget < MIN_BLOCK_BYTES) {
 		throw new OptionError(`memoryBytes: ${o.memoryBytes} bytes leave ${Math.max(0, Math.floor(blockBudget))} for a block after w, α, the margin log and read buffers (${state + 2 * chunkBytes} bytes); need at least ${MIN_BLOCK_BYTES}`);
 	}

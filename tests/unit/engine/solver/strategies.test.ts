@@ -49,11 +49,13 @@ describe('the four strategies', () => {
 		});
 	}
 
-	it('block with zlib-compressed blocks reaches the same primal', async () => {
+	it('block and selective with zlib-compressed blocks reach the same primal within the budget', async () => {
 		const plain = await run('block', 'logistic');
-		const packed = await run('block', 'logistic', { compress: true });
-		expect(Math.abs(packed.primal - plain.primal) / plain.primal).toBeLessThanOrEqual(TOL);
-		expect(packed.peakMemoryBytes).toBeLessThanOrEqual(BUDGET);
+		for (const s of ['block', 'selective'] as StrategyName[]) {
+			const packed = await run(s, 'logistic', { compress: true });
+			expect(Math.abs(packed.primal - plain.primal) / plain.primal, s).toBeLessThanOrEqual(TOL);
+			expect(packed.peakMemoryBytes, s).toBeLessThanOrEqual(BUDGET);
+		}
 	});
 
 	it('stream keeps to its cache budget and reads at increasing offsets within each pass', async () => {
