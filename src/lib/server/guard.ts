@@ -34,7 +34,7 @@ export function allows(role: Role, need: Need): boolean {
 }
 
 const isApi = (event: RequestEvent) => event.url.pathname.startsWith('/api/');
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+export const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** The signed-in user; pages redirect to sign-in, API routes answer 401. */
 export async function user(event: RequestEvent): Promise<SignedInUser> {
@@ -48,51 +48,44 @@ export async function user(event: RequestEvent): Promise<SignedInUser> {
 	return { id: u.id, email: u.email, name: u.name ?? null };
 }
 
-/** The user's membership in a team, checked against what they need to do. */
-export async function team(event: RequestEvent, teamId: string, need: Need) {
-	const me = await user(event);
-	const m = UUID.test(teamId) ? await teams.membership(teamId, me.id) : null;
-	if (!m) error(404, { code: 'not_found', message: 'No such team.' });
+/** The user's membership in a team (given by id, or the team a resource belongs to), checked against what they need. */
+export async function inTeam(event: RequestEvent, teamId: string | null | undefined, need: Need, noun = 'team') {
+	return memberAs(await user(event), teamId, need, noun);
+}
+
+async function memberAs(me: SignedInUser, teamId: string | null | undefined, need: Need, noun: string) {
+	const m = teamId && UUID.test(teamId) ? await teams.membership(teamId, me.id) : null;
+	if (!m) error(404, { code: 'not_found', message: `No such ${noun}.` });
 	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
 	return { user: me, team: m, role: m.role };
 }
 
-/** A project and the user's membership in its team, checked against what they need to do. */
+export const team = (event: RequestEvent, teamId: string, need: Need) => inTeam(event, teamId, need);
+
+/** A resource of a team, loaded by id: 404 when missing or in a team the user is not a member of. */
+async function owned<R extends { teamId: string }>(event: RequestEvent, id: string, need: Need, noun: string, load: (id: string) => Promise<R | null>) {
+	const me = await user(event);
+	const row = UUID.test(id) ? await load(id) : null;
+	return { ...(await memberAs(me, row?.teamId, need, noun)), row: row! };
+}
+
 export async function project(event: RequestEvent, projectId: string, need: Need) {
-	const me = await user(event);
-	const p = UUID.test(projectId) ? await projects.get(projectId) : null;
-	const m = p ? await teams.membership(p.teamId, me.id) : null;
-	if (!p || !m) error(404, { code: 'not_found', message: 'No such project.' });
-	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
-	return { user: me, team: m, role: m.role, project: p };
+	const { row, ...rest } = await owned(event, projectId, need, 'project', projects.get);
+	return { ...rest, project: row };
 }
 
-/** A plan and the user's membership in its team, checked against what they need to do. */
 export async function plan(event: RequestEvent, planId: string, need: Need) {
-	const me = await user(event);
-	const p = UUID.test(planId) ? await plans.get(planId) : null;
-	const m = p ? await teams.membership(p.teamId, me.id) : null;
-	if (!p || !m) error(404, { code: 'not_found', message: 'No such plan.' });
-	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
-	return { user: me, team: m, role: m.role, plan: p };
+	const { row, ...rest } = await owned(event, planId, need, 'plan', plans.get);
+	return { ...rest, plan: row };
 }
 
-/** A catalog machine and the user's membership in its team. */
 export async function machine(event: RequestEvent, machineId: string, need: Need) {
-	const me = await user(event);
-	const m0 = UUID.test(machineId) ? await machines.get(machineId) : null;
-	const m = m0 ? await teams.membership(m0.teamId, me.id) : null;
-	if (!m0 || !m) error(404, { code: 'not_found', message: 'No such machine.' });
-	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
-	return { user: me, team: m, role: m.role, machine: m0 };
+	const { row, ...rest } = await owned(event, machineId, need, 'machine', machines.get);
+	return { ...rest, machine: row };
 }
 
 /** A saved comparison: only members of its team may open it. */
 export async function comparison(event: RequestEvent, comparisonId: string, need: Need) {
-	const me = await user(event);
-	const c = UUID.test(comparisonId) ? await comparisons.get(comparisonId) : null;
-	const m = c ? await teams.membership(c.teamId, me.id) : null;
-	if (!c || !m) error(404, { code: 'not_found', message: 'No such comparison.' });
-	if (!allows(m.role, need)) error(403, { code: 'forbidden', message: `Your role (${m.role}) cannot ${needWords[need]} in this team.` });
-	return { user: me, team: m, role: m.role, comparison: c };
+	const { row, ...rest } = await owned(event, comparisonId, need, 'comparison', comparisons.get);
+	return { ...rest, comparison: row };
 }

@@ -1,6 +1,7 @@
 /** The team's machine catalog. */
 import { and, asc, eq, isNull, sql } from 'drizzle-orm';
 import { db } from './db/index.js';
+import { isUniqueViolation } from './db/errors.js';
 import { machines } from './db/schema.js';
 import { ApiError } from './http.js';
 import type { Machine } from '$lib/schemas/machine.js';
@@ -16,17 +17,13 @@ export async function get(id: string) {
 }
 
 const taken = (name: string) => new ApiError(409, 'conflict', `A machine named "${name}" is already in the catalog.`, { name: 'This name is taken in this team.' });
-const isUnique = (e: unknown) => {
-	const err = e as { code?: string; cause?: { code?: string } };
-	return err?.code === '23505' || err?.cause?.code === '23505';
-};
 
 export async function create(teamId: string, userId: string, name: string, profile: Machine, source: 'manual' | 'probe') {
 	try {
 		const [row] = await db.insert(machines).values({ teamId, name, profile: { ...profile, name }, source, createdBy: userId }).returning();
 		return row;
 	} catch (e) {
-		if (isUnique(e)) throw taken(name);
+		if (isUniqueViolation(e)) throw taken(name);
 		throw e;
 	}
 }
@@ -48,7 +45,7 @@ export async function update(id: string, change: { name?: string; profile?: Mach
 			.returning();
 		return row;
 	} catch (e) {
-		if (isUnique(e)) throw taken(name);
+		if (isUniqueViolation(e)) throw taken(name);
 		throw e;
 	}
 }

@@ -2,6 +2,7 @@
 import { and, asc, count, desc, eq, ilike, inArray, isNull, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { db } from './db/index.js';
+import { isUniqueViolation } from './db/errors.js';
 import { planRevisions, plans, projects, users } from './db/schema.js';
 import { ApiError } from './http.js';
 import * as estimates from './estimates.js';
@@ -129,10 +130,6 @@ function snapshotColumns(res: EstimateResponse) {
 }
 
 const duplicateName = (name: string) => new ApiError(409, 'conflict', `A plan named "${name}" already exists in this project.`, { name: 'This name is taken in this project.' });
-const isUnique = (e: unknown) => {
-	const err = e as { code?: string; cause?: { code?: string } };
-	return err?.code === '23505' || err?.cause?.code === '23505';
-};
 
 export async function create(input: { teamId: string; projectId: string; userId: string; name: string; plan: Plan; calibrationId?: string | null }) {
 	const res = await estimates.forPlan(input.teamId, input.plan, input.calibrationId);
@@ -147,7 +144,7 @@ export async function create(input: { teamId: string; projectId: string; userId:
 			return row.id;
 		});
 	} catch (e) {
-		if (isUnique(e)) throw duplicateName(input.name);
+		if (isUniqueViolation(e)) throw duplicateName(input.name);
 		throw e;
 	}
 }
@@ -164,7 +161,7 @@ export async function update(existing: PlanDetail, userId: string, change: { nam
 			await tx.insert(planRevisions).values({ planId: existing.id, input: { ...plan, name }, estimate: snap.estimate, calibrationId: snap.calibrationId, p50Seconds: snap.p50Seconds, createdBy: userId });
 		});
 	} catch (e) {
-		if (isUnique(e)) throw duplicateName(name);
+		if (isUniqueViolation(e)) throw duplicateName(name);
 		throw e;
 	}
 }

@@ -1,6 +1,7 @@
 /** Projects: named groups of plans inside a team. */
 import { and, asc, eq, sql } from 'drizzle-orm';
 import { db } from './db/index.js';
+import { isUniqueViolation } from './db/errors.js';
 import { projects, users } from './db/schema.js';
 import { ApiError } from './http.js';
 import type { ProjectCreate, ProjectUpdate } from '$lib/schemas/project.js';
@@ -29,10 +30,6 @@ export async function get(id: string) {
 
 const duplicate = (name: string) => new ApiError(409, 'conflict', `A project named "${name}" already exists in this team.`, { name: 'This name is taken in this team.' });
 
-function isUniqueViolation(e: unknown): boolean {
-	const err = e as { code?: string; cause?: { code?: string } };
-	return err?.code === '23505' || err?.cause?.code === '23505';
-}
 
 export async function create(teamId: string, userId: string, input: ProjectCreate) {
 	try {
