@@ -13,6 +13,7 @@ import { startWorker, type TestWorker } from '../helpers/worker.js';
 import { calibrationJobs, calibrations, plans } from '../../src/lib/server/db/schema.js';
 import { calibrationRecordSchema } from '../../src/lib/engine/calibrate/record.js';
 import { startCluster, stopCluster } from '../../src/lib/server/db/cluster.js';
+import * as store from '../../src/lib/server/jobs/store.js';
 
 let editor: ReturnType<typeof client>;
 let viewer: ReturnType<typeof client>;
@@ -138,6 +139,10 @@ describe('calibration jobs', () => {
 		expect(after.calibrationId).toBeNull();
 		// cancelling twice is a conflict, not a silent success
 		expect((await editor(`/api/calibrations/${job.id}/cancel`, { method: 'POST' })).status).toBe(409);
+		// a run that ends just after the cancel stores nothing either: the record's insert is rolled back
+		const before = await db().select({ id: calibrations.id }).from(calibrations).where(eq(calibrations.teamId, teamId));
+		expect(await store.finish(db(), await jobRow(job.id), { late: true }, 'synthetic')).toBeNull();
+		expect(await db().select({ id: calibrations.id }).from(calibrations).where(eq(calibrations.teamId, teamId))).toEqual(before);
 	});
 
 	it('shows why a job failed and can retry it', async () => {

@@ -2,7 +2,7 @@
  * Calibration jobs and records in PostgreSQL, for the web app and the worker alike (each passes
  * its own Drizzle client). A job's row is what users see; the queue only carries its id.
  */
-import { and, desc, eq, gt, gte, inArray, lt, sql } from 'drizzle-orm';
+import { and, desc, eq, gt, gte, inArray, lt, sql, TransactionRollbackError } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { calibrationJobs, calibrations, type CalibrationJob } from '../db/schema.js';
 
@@ -113,7 +113,7 @@ export async function finish(db: Db, job: CalibrationJob, record: unknown, sourc
 		}
 		return cal.id;
 	}).catch((e: unknown) => {
-		if ((e as Error)?.name === 'TransactionRollbackError') return null;
+		if (e instanceof TransactionRollbackError) return null;
 		throw e;
 	});
 }
