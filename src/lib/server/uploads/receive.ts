@@ -97,7 +97,8 @@ export interface Received {
 }
 
 export async function receive(body: ReadableStream<Uint8Array> | null, path: string, limit: number): Promise<Received> {
-	if (!body) throw new UploadError(400, 'empty', 'The request has no body: send the file itself as the body.');
+	// adapter-node gives no body to a request without a Content-Type
+	if (!body) throw new UploadError(400, 'empty', 'The request has no body: send the file itself as the body, with a Content-Type such as application/octet-stream.');
 	const { head, stream, drain } = await peek(body, 2);
 	if (head.length === 0) throw new UploadError(400, 'empty', 'The file is empty.');
 	const gzip = head[0] === 0x1f && head[1] === 0x8b;
