@@ -91,11 +91,14 @@ export function startCluster(dataDir: string, port: number, bin = findPgBin()): 
 		if (pid && postmasterAlive(pid)) return cluster(dataDir, port, bin);
 		rmSync(pidFile, { force: true });
 	}
-	runPg(bin, 'pg_ctl', [
-		'-D', dataDir, '-l', join(dataDir, 'server.log'), '-w', '-t', '60',
-		'-o', `-p ${port} -c listen_addresses=127.0.0.1 -k ${dataDir} -c fsync=on`,
-		'start'
-	]);
+	const log = join(dataDir, 'server.log');
+	try {
+		runPg(bin, 'pg_ctl', ['-D', dataDir, '-l', log, '-w', '-t', '60', '-o', `-p ${port} -c listen_addresses=127.0.0.1 -k ${dataDir} -c fsync=on`, 'start']);
+	} catch (e) {
+		// pg_ctl only says "examine the log": put the log's last lines in the error
+		const tail = existsSync(log) ? readFileSync(log, 'utf8').trim().split('\n').slice(-8).join('\n') : '(no server log)';
+		throw new Error(`${(e as Error).message.trim()}\nserver log ${log}:\n${tail}`);
+	}
 	return cluster(dataDir, port, bin);
 }
 
