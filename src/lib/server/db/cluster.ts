@@ -89,7 +89,9 @@ export function startCluster(dataDir: string, port: number, bin = findPgBin()): 
 	if (existsSync(pidFile)) {
 		const pid = Number(readFileSync(pidFile, 'utf8').split('\n')[0]);
 		if (pid && postmasterAlive(pid)) return cluster(dataDir, port, bin);
+		// A crashed postmaster left its lock files; PostgreSQL would take an unreaped (zombie) pid for a live one.
 		rmSync(pidFile, { force: true });
+		for (const f of readdirSync(dataDir)) if (/^\.s\.PGSQL\.\d+\.lock$/.test(f)) rmSync(join(dataDir, f), { force: true });
 	}
 	const log = join(dataDir, 'server.log');
 	try {
