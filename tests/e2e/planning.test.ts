@@ -46,6 +46,8 @@ async function newPlan(projectId: string, name: string, rows: string) {
 	await page.getByTestId('recommendation').waitFor();
 	await page.getByLabel('Plan name').fill(name);
 	await page.getByLabel('Rows').fill(rows);
+	// a small feature dimension keeps the calibration of this plan short
+	await page.getByLabel('Features').fill('20000');
 	await expect.poll(memoryP50, { timeout: 10_000 }).toMatch(/min|h|s|days/);
 }
 
@@ -77,16 +79,16 @@ describe('planning in the browser', () => {
 		expect(await page.getByLabel('RAM').inputValue()).toBe('64');
 	});
 
-	it('calibrates the saved plan and the progress bar finishes', async () => {
+	it('calibrates the saved plan and the progress bar finishes', { timeout: 180_000 }, async () => {
 		await page.getByTestId('calibration-panel').getByRole('button', { name: 'Calibrate' }).click();
 		await page.getByTestId('calibration-progress').waitFor();
-		await page.getByTestId('calibration-done').waitFor({ timeout: 90_000 });
+		await page.getByTestId('calibration-done').waitFor({ timeout: 150_000 });
 		await expect.poll(() => page.getByTestId('basis').innerText(), { timeout: 10_000 }).toContain('synthetic data shaped like this plan');
 		// the new calibration's convergence traces are drawn
 		await page.locator('[data-testid="convergence-chart"] path').first().waitFor();
 	});
 
-	it('uses an uploaded sample in a plan', async () => {
+	it('uses an uploaded sample in a plan', { timeout: 120_000 }, async () => {
 		const rows = Array.from({ length: 40 }, (_, i) => `${i % 3 === 0 ? '+1' : '-1'} ${1 + (i % 5)}:1 ${7 + (i % 4)}:0.5 12:${(i % 7) / 7}`).join('\n') + '\n';
 		const uploaded = await page.evaluate(
 			async ({ teamId, rows }) => {
@@ -96,7 +98,7 @@ describe('planning in the browser', () => {
 			{ teamId, rows }
 		);
 		await page.goto(`${baseUrl()}/teams/${teamId}/uploads/${uploaded}`);
-		await page.getByTestId('use-in-plan').waitFor({ timeout: 60_000 });
+		await page.getByTestId('use-in-plan').waitFor({ timeout: 90_000 });
 		await page.getByLabel('Rows in the full dataset').fill('5000000');
 		await page.getByRole('button', { name: 'Use in plan' }).click();
 		await page.getByTestId('from-upload').waitFor();
