@@ -1,6 +1,7 @@
 /** limits.check, the entry the calibration side calls: Free and Team calibration allowances per calendar month. */
 import { afterAll, beforeAll, describe, expect, it, inject, vi } from 'vitest';
-import { calibrationJobs, teamBilling } from '../../src/lib/server/db/schema.js';
+import { eq } from 'drizzle-orm';
+import { calibrationJobs, calibrations, teamBilling } from '../../src/lib/server/db/schema.js';
 import { closeDb, db, makeTeam, unique } from '../helpers/factories.js';
 
 // server modules read SvelteKit's private env; here it is this process's environment, set below
@@ -31,5 +32,17 @@ describe('limits.check', () => {
 		await db().insert(teamBilling).values({ teamId: team.id, status: 'active' });
 		expect(await limits.check(team.id, 'calibrations')).toMatchObject({ allowed: true, limit: 2000, tier: 'team' });
 		expect(await limits.check(team.id, 'projects')).toMatchObject({ allowed: true, limit: null });
+	});
+
+	it('does not count a job that reused an older calibration, and counts one that made its own', async () => {
+		const team = await makeTeam(unique('Reusing'));
+		const [older] = await db().insert(calibrations).values({ teamId: team.id, shapeKey: 'k', record: {}, createdAt: new Date(Date.now() - 3600_000) }).returning();
+		await db().insert(calibrationJobs).values({ teamId: team.id, shapeKey: 'k', input: {}, status: 'done', calibrationId: older.id });
+		expect(await limits.check(team.id, 'calibrations')).toMatchObject({ used: 0 });
+		const ran = new Date(Date.now() - 60_000);
+		const [job] = await db().insert(calibrationJobs).values({ teamId: team.id, shapeKey: 'k', input: {}, status: 'done', createdAt: ran }).returning();
+		const [own] = await db().insert(calibrations).values({ teamId: team.id, shapeKey: 'k', record: {} }).returning();
+		await db().update(calibrationJobs).set({ calibrationId: own.id }).where(eq(calibrationJobs.id, job.id));
+		expect(await limits.check(team.id, 'calibrations')).toMatchObject({ used: 1 });
 	});
 });

@@ -4,7 +4,7 @@
  */
 import { and, count, eq, gt, gte, isNull, sql } from 'drizzle-orm';
 import { db } from '../db/index.js';
-import { calibrationJobs, invitations, memberships, projects, teamBilling } from '../db/schema.js';
+import { calibrationJobs, calibrations, invitations, memberships, projects, teamBilling } from '../db/schema.js';
 import { ApiError } from '../http.js';
 import { FREE, LIMIT_WORDS, TEAM, money, tierFor, type LimitKind, type Tier } from './tiers.js';
 
@@ -41,10 +41,18 @@ export async function usage(teamId: string, kind: LimitKind, q: Q = db): Promise
 			.where(and(eq(invitations.teamId, teamId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())));
 		return m.n + i.n;
 	}
+	// a job that reused an older calibration ran nothing, so it does not count as a run
 	const [c] = await q
 		.select({ n: count() })
 		.from(calibrationJobs)
-		.where(and(eq(calibrationJobs.teamId, teamId), gte(calibrationJobs.createdAt, sql`date_trunc('month', now() at time zone 'utc') at time zone 'utc'`)));
+		.leftJoin(calibrations, eq(calibrations.id, calibrationJobs.calibrationId))
+		.where(
+			and(
+				eq(calibrationJobs.teamId, teamId),
+				gte(calibrationJobs.createdAt, sql`date_trunc('month', now() at time zone 'utc') at time zone 'utc'`),
+				sql`(${calibrations.id} is null or ${calibrations.createdAt} >= ${calibrationJobs.createdAt})`
+			)
+		);
 	return c.n;
 }
 
