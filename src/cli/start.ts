@@ -9,7 +9,7 @@ import type { ChildProcess } from 'node:child_process';
 import { ensureLocalDatabase } from '../lib/server/db/local.js';
 import { stopCluster } from '../lib/server/db/cluster.js';
 import { createDb } from '../lib/server/db/client.js';
-import { seedDemo, DEMO_EMAIL } from '../lib/server/seed.js';
+import { seedDemo, seedDemoPlans, DEMO_EMAIL } from '../lib/server/seed.js';
 import { startFakeStripe, type FakeStripe } from './fake-stripe.js';
 import { buildIfStale, root, serveApp, startMaildev, startWorker } from './services.js';
 
@@ -48,7 +48,6 @@ try {
 	ownCluster = database.dataDir;
 	const { db, client } = createDb(database.url, 1);
 	const seeded = await seedDemo(db);
-	await client.end();
 
 	const external = Boolean(process.env.SMTP_URL);
 	if (!external) children.push(await startMaildev(smtpPort, inboxPort));
@@ -63,6 +62,8 @@ try {
 		...(fakeStripe && { STRIPE_API_BASE: fakeStripe.url })
 	});
 	children.push(app);
+	const demoPlans = await seedDemoPlans(db, `http://127.0.0.1:${port}`);
+	await client.end();
 	app.on('exit', (code) => {
 		console.error(`web server exited (${code}); stopping.`);
 		shutdown(1);
@@ -81,7 +82,7 @@ Loadline is running.
   Worker:      calibrations and sample uploads (pid ${worker.pid})
   Fake inbox:  ${external ? `real SMTP at ${process.env.SMTP_URL}` : `http://127.0.0.1:${inboxPort}  (SMTP on 127.0.0.1:${smtpPort})`}
   Fake Stripe: ${fakeStripe ? `${fakeStripe.url}  (in memory; webhooks to /api/billing/webhook, dev signing secret unless STRIPE_WEBHOOK_SECRET)` : 'real Stripe (STRIPE_SECRET_KEY)'}
-  Demo data:   ${seeded.created ? 'created' : 'already present'}
+  Demo data:   ${seeded.created || demoPlans > 0 ? `created (${demoPlans} demo plans)` : 'already present'}
 
 Sign in as the demo user: open http://127.0.0.1:${port}/signin, enter ${DEMO_EMAIL},
 then open the fake inbox and click the link in the newest message.

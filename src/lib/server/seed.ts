@@ -1,7 +1,8 @@
-/** Invented demo data for `npm start`: one team, one user, two projects. Idempotent. */
+/** Invented demo data for `npm start`: one team, one user, two projects and three plans. Idempotent. */
 import { and, eq } from 'drizzle-orm';
 import type { Db } from './db/client.js';
-import { memberships, projects, teams, users } from './db/schema.js';
+import { randomBytes } from 'node:crypto';
+import { memberships, plans, projects, sessions, teams, users } from './db/schema.js';
 
 export const DEMO_EMAIL = 'demo@loadline.test';
 const DEMO_TEAM = 'Kestrel Freight — data science';
@@ -30,4 +31,71 @@ export async function seedDemo(db: Db): Promise<{ created: boolean }> {
 		}
 		return { created };
 	});
+}
+
+const DEMO_PLANS: { project: string; name: string; plan: Record<string, unknown> }[] = [
+	{
+		project: 'Parcel delay classifier',
+		name: 'Nightly retrain on a desktop',
+		plan: {
+			dataset: { rows: 40_000_000, features: 2_000_000, nnzPerRow: 60, positiveFraction: 0.22, valueKind: 'real', format: 'binary', compressed: false },
+			machine: { name: 'desktop, PCIe 3.0 NVMe', ramGiB: 32, diskMBps: 3300, diskInterface: 'pcie3x4', cores: 8, coreSpeed: 1.2, pricePerHour: 0.15 },
+			training: { loss: 'hinge', C: 1, tol: 0.01, cValues: 1, folds: 1 },
+			deadlineHours: 8
+		}
+	},
+	{
+		project: 'Parcel delay classifier',
+		name: 'Nightly retrain on the 10GbE server',
+		plan: {
+			dataset: { rows: 40_000_000, features: 2_000_000, nnzPerRow: 60, positiveFraction: 0.22, valueKind: 'real', format: 'binary', compressed: false },
+			machine: { name: 'server, network storage 10GbE', ramGiB: 256, diskMBps: 1100, diskInterface: 'gbe10', cores: 32, coreSpeed: 1, pricePerHour: 2.4 },
+			training: { loss: 'hinge', C: 1, tol: 0.01, cValues: 1, folds: 1 },
+			deadlineHours: 8
+		}
+	},
+	{
+		project: 'Invoice anomaly screening',
+		name: 'Weekly C sweep on the archive box',
+		plan: {
+			dataset: { rows: 5_000_000, features: 500_000, nnzPerRow: 30, positiveFraction: 0.05, valueKind: 'binary', format: 'text', compressed: true },
+			machine: { name: 'archive box, spinning disk', ramGiB: 32, diskMBps: 180, diskInterface: 'hdd', cores: 8, coreSpeed: 0.9, pricePerHour: 0.12 },
+			training: { loss: 'logistic', C: 0.5, tol: 0.01, cValues: 6, folds: 3 },
+			deadlineHours: 48
+		}
+	}
+];
+
+/**
+ * Demo plans go in through the running app's own API, so their estimate snapshots are made exactly as a
+ * user's would be; a short-lived session row stands in for the demo user's sign-in. Projects that already
+ * hold plans are left alone.
+ */
+export async function seedDemoPlans(db: Db, baseUrl: string): Promise<number> {
+	const [user] = await db.select().from(users).where(eq(users.email, DEMO_EMAIL));
+	if (!user) return 0;
+	const [team] = await db.select().from(teams).where(and(eq(teams.name, DEMO_TEAM), eq(teams.personal, false)));
+	if (!team) return 0;
+	const mine = await db.select({ id: projects.id, name: projects.name }).from(projects).where(eq(projects.teamId, team.id));
+	const todo = DEMO_PLANS.map((p) => ({ ...p, projectId: mine.find((m) => m.name === p.project)?.id })).filter((p) => p.projectId);
+	const withPlans = new Set((await db.select({ projectId: plans.projectId }).from(plans).where(eq(plans.teamId, team.id))).map((r) => r.projectId));
+	const missing = todo.filter((p) => !withPlans.has(p.projectId!));
+	if (missing.length === 0) return 0;
+	const token = randomBytes(24).toString('hex');
+	await db.insert(sessions).values({ sessionToken: token, userId: user.id, expires: new Date(Date.now() + 600_000) });
+	let made = 0;
+	try {
+		for (const p of missing) {
+			const res = await fetch(`${baseUrl}/api/plans`, {
+				method: 'POST',
+				headers: { cookie: `authjs.session-token=${token}`, origin: baseUrl, 'content-type': 'application/json' },
+				body: JSON.stringify({ projectId: p.projectId, name: p.name, plan: p.plan })
+			});
+			if (res.ok) made++;
+			else console.error(`demo plan "${p.name}" not created: ${res.status} ${await res.text()}`);
+		}
+	} finally {
+		await db.delete(sessions).where(eq(sessions.sessionToken, token));
+	}
+	return made;
 }
