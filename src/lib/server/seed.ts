@@ -2,6 +2,7 @@
 import { and, eq } from 'drizzle-orm';
 import type { Db } from './db/client.js';
 import { randomBytes } from 'node:crypto';
+import { findPreset } from '../engine/model/presets.js';
 import { memberships, plans, projects, sessions, teams, users } from './db/schema.js';
 
 export const DEMO_EMAIL = 'demo@loadline.test';
@@ -33,33 +34,28 @@ export async function seedDemo(db: Db): Promise<{ created: boolean }> {
 	});
 }
 
+/** A preset as a plan's machine section; the demo plans use the generic presets, not numbers of their own. */
+function presetMachine(id: string) {
+	const { id: _id, ...machine } = findPreset(id)!;
+	return machine;
+}
+
+// One nightly job on two candidate machines: the comparison a platform engineer makes.
+const NIGHTLY_PARCEL_JOB = {
+	dataset: { rows: 40_000_000, features: 2_000_000, nnzPerRow: 60, positiveFraction: 0.22, valueKind: 'real', format: 'binary', compressed: false },
+	training: { loss: 'hinge', C: 1, tol: 0.01, cValues: 1, folds: 1 },
+	deadlineHours: 8
+};
+
 const DEMO_PLANS: { project: string; name: string; plan: Record<string, unknown> }[] = [
-	{
-		project: 'Parcel delay classifier',
-		name: 'Nightly retrain on a desktop',
-		plan: {
-			dataset: { rows: 40_000_000, features: 2_000_000, nnzPerRow: 60, positiveFraction: 0.22, valueKind: 'real', format: 'binary', compressed: false },
-			machine: { name: 'desktop, PCIe 3.0 NVMe', ramGiB: 32, diskMBps: 3300, diskInterface: 'pcie3x4', cores: 8, coreSpeed: 1.2, pricePerHour: 0.15 },
-			training: { loss: 'hinge', C: 1, tol: 0.01, cValues: 1, folds: 1 },
-			deadlineHours: 8
-		}
-	},
-	{
-		project: 'Parcel delay classifier',
-		name: 'Nightly retrain on the 10GbE server',
-		plan: {
-			dataset: { rows: 40_000_000, features: 2_000_000, nnzPerRow: 60, positiveFraction: 0.22, valueKind: 'real', format: 'binary', compressed: false },
-			machine: { name: 'server, network storage 10GbE', ramGiB: 256, diskMBps: 1100, diskInterface: 'gbe10', cores: 32, coreSpeed: 1, pricePerHour: 2.4 },
-			training: { loss: 'hinge', C: 1, tol: 0.01, cValues: 1, folds: 1 },
-			deadlineHours: 8
-		}
-	},
+	{ project: 'Parcel delay classifier', name: 'Nightly retrain on a desktop', plan: { ...NIGHTLY_PARCEL_JOB, machine: presetMachine('desktop-pcie3') } },
+	{ project: 'Parcel delay classifier', name: 'Nightly retrain on the 10GbE server', plan: { ...NIGHTLY_PARCEL_JOB, machine: presetMachine('server-10gbe') } },
 	{
 		project: 'Invoice anomaly screening',
 		name: 'Weekly C sweep on the archive box',
 		plan: {
 			dataset: { rows: 5_000_000, features: 500_000, nnzPerRow: 30, positiveFraction: 0.05, valueKind: 'binary', format: 'text', compressed: true },
-			machine: { name: 'archive box, spinning disk', ramGiB: 32, diskMBps: 180, diskInterface: 'hdd', cores: 8, coreSpeed: 0.9, pricePerHour: 0.12 },
+			machine: presetMachine('archive-hdd'),
 			training: { loss: 'logistic', C: 0.5, tol: 0.01, cValues: 6, folds: 3 },
 			deadlineHours: 48
 		}
