@@ -14,13 +14,14 @@ const wall = (plan: Plan, s: StrategyName, rec = record) => predict(plan, rec).s
 
 describe('memory feasibility', () => {
 	it('turns infeasible exactly where required bytes exceed usable RAM', () => {
-		// by hand: solver rows 21 B/row + 8 B per real nonzero (+8), w 8d, α 8n, two 8 MiB read buffers, runtime; usable = RAM − max(0.5 GiB, 10 %)
+		// by hand: solver rows 21 B/row + 8 B per real nonzero (+8), w 8d, α 8n, two 8 MiB read buffers, the feature
+		// renumbering map 4d (w of 8 MB is past the 4 MiB threshold), runtime; usable = RAM − max(0.5 GiB, 10 %)
 		const ramGiB = 16;
 		const usable = ramGiB * GiB - 0.1 * ramGiB * GiB;
 		const d = 1_000_000;
 		const k = 40;
 		const perRow = 21 + 8 * k + 8;
-		const buffers = 2 * 8 * 2 ** 20;
+		const buffers = 2 * 8 * 2 ** 20 + 4 * d;
 		const limit = Math.floor((usable - 8 - 8 * d - buffers - RUNTIME_BYTES) / perRow);
 		const at = (rows: number) => predict(aPlan({ dataset: { rows, features: d, nnzPerRow: k }, machine: { ramGiB } }), record).strategies[0];
 		expect(at(limit).feasible).toBe(true);
@@ -160,5 +161,22 @@ describe('what an estimate contains', () => {
 		const t = performance.now();
 		for (let i = 0; i < 200; i++) predict({ ...p, dataset: { ...p.dataset, rows: 1e6 + i } }, record);
 		expect(performance.now() - t).toBeLessThan(1000);
+	});
+});
+
+describe('the epoch limit', () => {
+	it('caps a strategy whose epochs would pass the engine limit, says so, and recommends one that converges', () => {
+		// block runs whose epochs double with rows: extrapolated to 10 million rows they pass the 1000-epoch limit
+		const rec = aRecord();
+		rec.runs = rec.runs.map((r) => (r.strategy === 'block' ? { ...r, epochs: r.rows / 5, updates: (r.rows * r.rows) / 5 } : r));
+		const e = predict(aPlan({ dataset: { rows: 10_000_000 }, machine: { ramGiB: 16 } }), rec);
+		const block = e.strategies.find((s) => s.strategy === 'block')!;
+		// the engine's default maxEpochs (solver/options.ts) is where a run stops
+		expect(block.reachesTolerance).toBe(false);
+		expect(block.epochs).toBeCloseTo(1000, 6);
+		expect(e.notes.some((n) => n.startsWith('block: predicted to stop at the epoch limit (1000 epochs)'))).toBe(true);
+		const others = e.strategies.filter((s) => s.strategy !== 'block');
+		expect(others.every((s) => s.reachesTolerance)).toBe(true);
+		expect(e.recommended).not.toBe('block');
 	});
 });

@@ -16,6 +16,8 @@ export interface StrategyEstimate {
 	passes: { p50: number; p90: number };
 	/** trainer passes over the examples in RAM */
 	epochs: number;
+	/** false when the run is predicted to stop at the engine's epoch limit before the gap reaches tol */
+	reachesTolerance: boolean;
 	/** share of coordinate updates served from memory */
 	cacheHitRate: number;
 	/** one training run */
@@ -48,7 +50,7 @@ export interface Extrapolation {
 
 export interface Estimate {
 	strategies: StrategyEstimate[];
-	/** fastest feasible strategy, null when none is feasible */
+	/** fastest feasible strategy that reaches the tolerance (else the fastest feasible), null when none is feasible */
 	recommended: StrategyName | null;
 	/** one sentence saying why */
 	why: string;

@@ -12,6 +12,7 @@ import { extraNsForRows, fitModel, kernelNs, evalLinear, lnLnRows, type FittedMo
 import { binaryBytes, bytesOnDisk, formatBytes, rowsInRamBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
+import { DEFAULT_MAX_EPOCHS } from '../solver/options.js';
 
 export { RUNTIME_BYTES };
 
@@ -94,9 +95,14 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const perByte = Math.max(f.throttleRatio / ctx.diskBps, ctx.cpuScale / f.decodeBps);
 	const updatesPerRead = ratioUpdatesPerRead(ctx.binBytes / rows, 1 / perByte, ctx.tUpdate);
 	const x = [lnLnRows(rows), Math.log(cacheFraction), Math.log(updatesPerRead)];
-	const passesEngine = s === 'memory' ? 1 : Math.max(1, Math.exp(evalLinear(f.passes, x)));
-	const epochs = Math.exp(evalLinear(f.epochs, x));
-	const updates = rows * Math.exp(evalLinear(f.updatesPerRow, x));
+	const passesFree = s === 'memory' ? 1 : Math.max(1, Math.exp(evalLinear(f.passes, x)));
+	const epochsFree = Math.exp(evalLinear(f.epochs, x));
+	// the engine stops at its epoch limit: the work beyond it is not done (and the gap stays above tol)
+	const reachesTolerance = epochsFree <= DEFAULT_MAX_EPOCHS;
+	const cut = reachesTolerance ? 1 : DEFAULT_MAX_EPOCHS / epochsFree;
+	const epochs = epochsFree * cut;
+	const passesEngine = s === 'memory' ? 1 : Math.max(1, 1 + (passesFree - 1) * cut);
+	const updates = rows * Math.exp(evalLinear(f.updatesPerRow, x)) * cut;
 	const hit = s === 'memory' ? 1 - Math.min(1, rows / Math.max(updates, rows)) : 1 - Math.min(1, Math.exp(evalLinear(f.missRate, x)));
 	const read = passesEngine * ctx.binBytes * perByte;
 	const compute = updates * (ctx.tUpdate * f.costRatio + ctx.tStall);
@@ -124,6 +130,7 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 		reason,
 		passes: { p50: passes, p90: ctx.conversion.passes + passesEngine * Math.exp(Z90 * sigmaPasses) },
 		epochs,
+		reachesTolerance,
 		cacheHitRate: Math.max(0, hit),
 		wallSeconds,
 		breakdown: { prepare, read: read - read / passesEngine, compute, overlap },
@@ -198,7 +205,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		conversion: conversion(plan, rec, rows, cpuScale, binBytes)
 	};
 	const strategies = ORDER.filter((s) => model.strategies[s]).map((s) => estimateOne(ctx, s, model.strategies[s]));
-	const feasible = strategies.filter((e) => e.feasible).sort((a, b) => a.sweep.wallSeconds.p50 - b.sweep.wallSeconds.p50);
+	// a strategy that stops at the epoch limit returns a less accurate model: it comes last
+	const feasible = strategies.filter((e) => e.feasible).sort((a, b) => Number(b.reachesTolerance) - Number(a.reachesTolerance) || a.sweep.wallSeconds.p50 - b.sweep.wallSeconds.p50);
 	const best = feasible[0];
 	let why: string;
 	if (!best) why = `No strategy fits: ${strategies.find((e) => e.reason)?.reason ?? 'no calibrated strategy'}.`;
@@ -207,7 +215,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		const memory = strategies.find((e) => e.strategy === 'memory');
 		const vs = next ? ` against ${formatSeconds(next.sweep.wallSeconds.p50)} for ${next.strategy}` : '';
 		const mem = best.strategy !== 'memory' && memory && !memory.feasible ? `; memory does not fit (${memory.reason})` : '';
-		why = `${best.strategy} is the fastest feasible strategy at ${formatSeconds(best.sweep.wallSeconds.p50)} (p50, ${best.passes.p50.toFixed(1)} passes)${vs}${mem}.`;
+		const short = best.reachesTolerance ? '' : ` No strategy reaches tol=${plan.training.tol} within ${DEFAULT_MAX_EPOCHS} epochs: raise tol, lower C, or give it more RAM.`;
+		why = `${best.strategy} is the fastest feasible strategy${best.reachesTolerance && feasible.some((e) => !e.reachesTolerance) ? ' that reaches the tolerance' : ''} at ${formatSeconds(best.sweep.wallSeconds.p50)} (p50, ${best.passes.p50.toFixed(1)} passes)${vs}${mem}.${short}`;
 	}
 	const notes = [
 		`measured on ${rec.machine.cpuModel} (${rec.machine.date.slice(0, 10)}): per-update cost, decode speed, passes, epochs and hit rates at up to ${calibratedRows} rows`,
@@ -215,7 +224,8 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		...(ds.features > rec.features ? [`weights of ${formatBytes(weightBytes(ds.features))} exceed the ${formatBytes(weightBytes(rec.features))} calibration could hold: per-update cost is extrapolated`] : []),
 		...(plan.training.cValues > 1 ? ['a sweep assumes every C value costs what training.C costs'] : []),
 		...differences(plan, rec),
-		...strategies.flatMap((e) => outside(e, model.strategies[e.strategy]!))
+		...strategies.flatMap((e) => outside(e, model.strategies[e.strategy]!)),
+		...strategies.filter((e) => !e.reachesTolerance).map((e) => `${e.strategy}: predicted to stop at the epoch limit (${DEFAULT_MAX_EPOCHS} epochs) before the duality gap reaches tol=${plan.training.tol}; time shown is up to that limit`)
 	];
 	return {
 		strategies,

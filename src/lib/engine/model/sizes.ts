@@ -6,6 +6,7 @@
 import type { Dataset } from '../../schemas/plan.js';
 import { workingSetBytes } from '../solver/rows.js';
 import { stateBytes } from '../solver/meter.js';
+import { memoryStateBytes } from '../solver/strategy-memory.js';
 
 export const GiB = 1024 ** 3;
 /** rows per chunk record in binary files the engine writes */
@@ -89,7 +90,7 @@ const readBuffer = (memoryBytes: number, div: number) => Math.max(64 * 1024, Mat
  * per-example solver state (12n), selective's cache flag and stream's resident flag (1n).
  */
 export function engineStateBytes(strategy: 'memory' | 'block' | 'selective' | 'stream', rows: number, features: number, logistic: boolean, memoryBytes = Infinity): number {
-	if (strategy === 'memory') return stateBytes(rows, features, logistic, false) + 2 * (8 << 20);
+	if (strategy === 'memory') return memoryStateBytes(rows, features, logistic);
 	const state = stateBytes(rows, features, logistic, true);
 	if (strategy === 'block') return state + 12 * rows + 2 * readBuffer(memoryBytes, 32);
 	if (strategy === 'selective') return state + rows + 2 * readBuffer(memoryBytes, 32);

@@ -168,6 +168,13 @@ export class SvmDualCoordinateDescent implements CoordinateSolver {
 
 	reload(rows: SparseRows): void {
 		this.ws.rows = rows;
+		// w moved while the block was out, so the examples shrunk on the last visit are re-examined
+		if (rows.n > 0) {
+			this.activeSize = rows.n;
+			this.pgMaxOld = Infinity;
+			this.pgMinOld = -Infinity;
+			this.settled = false;
+		}
 	}
 
 	tighten(): boolean {

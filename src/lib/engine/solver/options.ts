@@ -53,6 +53,8 @@ export interface ResolvedOptions {
 export class OptionError extends Error {}
 
 const DEFAULT_BUDGET = 256 * 2 ** 20;
+/** trainer epochs before a run stops short of its tolerance */
+export const DEFAULT_MAX_EPOCHS = 1000;
 
 function positive(name: string, x: number | undefined, fallback: number, integer = false): number {
 	if (x === undefined) return fallback;
@@ -75,7 +77,7 @@ export function resolveOptions(o: SolverOptions): ResolvedOptions {
 		C,
 		strategy: o.strategy,
 		tol: positive('tol', o.tol, 0.01),
-		maxEpochs: positive('maxEpochs', o.maxEpochs, 1000),
+		maxEpochs: positive('maxEpochs', o.maxEpochs, DEFAULT_MAX_EPOCHS),
 		seed: o.seed ?? 1,
 		memoryBytes: positive('memoryBytes', o.memoryBytes, o.strategy === 'memory' ? Infinity : DEFAULT_BUDGET),
 		diskMBps: o.diskMBps === undefined ? undefined : positive('diskMBps', o.diskMBps, 0),

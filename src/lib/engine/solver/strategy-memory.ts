@@ -1,7 +1,8 @@
 /**
  * memory strategy: load the whole binary row file (one pass), then dual coordinate descent with
  * shrinking in RAM (solve-rows.ts). Counted memory: the rows as loaded + w + α (+ C − α for logistic)
- * + the loader's read buffers.
+ * + the loader's read buffers. A weight vector beyond the caches gets its features renumbered by
+ * popularity first (renumber.ts; its cost counts as compute); the map back is d × 4 bytes more.
  */
 import type { TrainReport } from '../types.js';
 import { loadBinary, readBinaryHeader } from '../data/binary.js';
@@ -10,19 +11,29 @@ import { OptionError } from './options.js';
 import { Meter, hitRate, stateBytes } from './meter.js';
 import { solveRows } from './solve-rows.js';
 import { workingSetBytes } from './rows.js';
+import { RENUMBER_MIN_WEIGHT_BYTES, renumberByPopularity, weightsInOldOrder } from './renumber.js';
+
+/** the loader's two read buffers (one read ahead) */
+const CHUNK_BYTES = 8 << 20;
+
+/** What the memory strategy counts besides the rows: w, α (+ C − α), read buffers, the renumbering map. */
+export function memoryStateBytes(n: number, d: number, logistic: boolean): number {
+	return stateBytes(n, d, logistic, false) + 2 * CHUNK_BYTES + (d * 8 >= RENUMBER_MIN_WEIGHT_BYTES ? 4 * d : 0);
+}
 
 export async function trainMemory(o: ResolvedOptions): Promise<TrainReport> {
 	const meter = new Meter();
 	const h = await readBinaryHeader(o.data);
-	// the loader's two read buffers (one read ahead) count too
-	const chunkBytes = 8 << 20;
-	const need = workingSetBytes(h.n, h.nnz, h.valueKind === 'real') + stateBytes(h.n, h.d, o.loss === 'logistic', false) + 2 * chunkBytes;
+	const chunkBytes = CHUNK_BYTES;
+	const renumber = h.d * 8 >= RENUMBER_MIN_WEIGHT_BYTES;
+	const need = workingSetBytes(h.n, h.nnz, h.valueKind === 'real') + memoryStateBytes(h.n, h.d, o.loss === 'logistic');
 	if (need > o.memoryBytes) throw new OptionError(`memoryBytes: the memory strategy needs ${need} bytes for ${h.n} rows, the budget is ${o.memoryBytes}`);
 	const rows = await meter.read(() => loadBinary(o.data, { throttleMBps: o.diskMBps, chunkBytes }));
 	meter.passes = 1;
 	meter.exampleReads = rows.n;
 	meter.hold(need);
 	const readSeconds = meter.readMs / 1000;
+	const newIndex = renumber ? meter.compute(() => renumberByPopularity(rows)) : null;
 	const s = meter.compute(() =>
 		solveRows(rows, {
 			loss: o.loss,
@@ -51,6 +62,6 @@ export async function trainMemory(o: ResolvedOptions): Promise<TrainReport> {
 		accuracy: s.accuracy,
 		outerIterations: 0,
 		trace: s.trace.map((t) => ({ seconds: readSeconds + t.seconds, gap: t.gap })),
-		...(o.keepWeights ? { w: s.w } : {})
+		...(o.keepWeights ? { w: newIndex ? weightsInOldOrder(s.w, newIndex) : s.w } : {})
 	};
 }
