@@ -126,10 +126,11 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		const throttle = (bps: number) => (bps >= decodeBps * 0.9 ? undefined : bps / 1e6);
 
 		const runs: CalibrationRun[] = [];
-		const fixed = elapsed();
-		const weightSum = strategies.reduce((a, s) => a + WEIGHTS[s], 0);
+		let weightLeft = strategies.reduce((a, s) => a + WEIGHTS[s], 0);
 		for (const s of strategies) {
-			const share = ((budgetSeconds - fixed) * WEIGHTS[s]) / weightSum;
+			// each strategy gets its weight's share of what is left, so an overrun is made up by the next ones
+			const share = (Math.max(0, budgetSeconds - elapsed()) * WEIGHTS[s]) / weightLeft;
+			weightLeft -= WEIGHTS[s];
 			const started = elapsed();
 			const referenceNs = reference();
 			const targetFraction = budgetShape(plan, s, ds.rows, opts.memoryBytes).cacheFraction;
