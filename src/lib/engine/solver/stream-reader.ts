@@ -30,6 +30,9 @@ import {
 	type SharedBuffers
 } from './stream-cache.js';
 
+/** rows up to this many nonzeros are copied element by element */
+const SHORT_ROW = 64;
+
 export interface ReaderData {
 	path: string;
 	buffers: SharedBuffers;
@@ -112,9 +115,12 @@ async function run(data: ReaderData): Promise<ReaderResult> {
 		})) {
 			stats[1] += performance.now() - t;
 			let p = 0;
+			// the chunk's arrays in locals, and short rows copied by a loop: a subarray per row costs an allocation
+			const { lengths, labels, indices, values, firstRow } = view;
+			const copyValues = val !== null && values !== null;
 			for (let r = 0; r < view.rows; r++) {
-				const len = view.lengths[r];
-				const gid = view.firstRow + r;
+				const len = lengths[r];
+				const gid = firstRow + r;
 				if (Atomics.load(inCache, gid) === 0) {
 					const words = ROW_HEADER_WORDS + len;
 					if (seg < 0 || pos + words > segEnd) {
@@ -124,16 +130,19 @@ async function run(data: ReaderData): Promise<ReaderResult> {
 					}
 					idx[pos] = gid;
 					idx[pos + 1] = len;
-					idx[pos + 2] = view.labels[r] < 0 ? FLAG_NEGATIVE : 0;
+					idx[pos + 2] = labels[r] < 0 ? FLAG_NEGATIVE : 0;
 					idx[pos + 3] = 0;
 					const s = pos + ROW_HEADER_WORDS;
-					idx.set(view.indices.subarray(p, p + len), s);
+					if (len <= SHORT_ROW) for (let j = 0; j < len; j++) idx[s + j] = indices[p + j];
+					else idx.set(indices.subarray(p, p + len), s);
 					let sq = len;
-					if (val && view.values) {
-						const v = view.values.subarray(p, p + len);
-						val.set(v, s);
+					if (copyValues) {
 						sq = 0;
-						for (let j = 0; j < len; j++) sq += v[j] * v[j];
+						for (let j = 0; j < len; j++) {
+							const x = values![p + j];
+							val![s + j] = x;
+							sq += x * x;
+						}
 					}
 					xsq[pos + 4] = sq;
 					Atomics.store(inCache, gid, 1);
