@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import { and, desc, eq, gt } from 'drizzle-orm';
 import { db } from './db/index.js';
 import { calibrations } from './db/schema.js';
-import { calibrationRecordSchema, type CalibrationRecord } from '$lib/engine/calibrate/record.js';
+import { calibrationDataSchema, calibrationRecordSchema, type CalibrationRecord } from '$lib/engine/calibrate/record.js';
 import type { Plan } from '$lib/schemas/plan.js';
 import builtIn from './baseline-calibration.json';
 
@@ -38,6 +38,20 @@ export interface CalibrationMeta {
 	machine: string;
 	/** the calibration was made for a plan of this plan's shape */
 	sameShape: boolean;
+	/** source 'sample': the uploaded sample it ran on (file name as uploaded, rows used at most) */
+	sample?: SampleUsed;
+}
+
+export interface SampleUsed {
+	name: string | null;
+	rows: number;
+	uploadId: string | null;
+}
+
+/** The uploaded sample a stored record ran on, or null when it ran on synthetic data (or predates the field). */
+export function sampleOf(record: unknown): SampleUsed | null {
+	const data = calibrationDataSchema.safeParse((record as { data?: unknown } | null)?.data);
+	return data.success && data.data.source === 'sample' ? { name: data.data.name ?? null, rows: data.data.rows, uploadId: data.data.uploadId ?? null } : null;
 }
 
 export interface ResolvedCalibration {
@@ -64,6 +78,7 @@ export function builtInCalibration(plan?: Plan): ResolvedCalibration {
 
 function resolved(row: typeof calibrations.$inferSelect, plan: Plan | undefined): ResolvedCalibration {
 	const record = calibrationRecordSchema.parse(row.record);
+	const sample = row.source === 'sample' ? sampleOf(record) : null;
 	return {
 		record,
 		meta: {
@@ -71,7 +86,8 @@ function resolved(row: typeof calibrations.$inferSelect, plan: Plan | undefined)
 			source: row.source === 'sample' ? 'sample' : 'synthetic',
 			createdAt: row.createdAt.toISOString(),
 			machine: record.machine.cpuModel,
-			sameShape: plan ? row.shapeKey === shapeKey(plan) : true
+			sameShape: plan ? row.shapeKey === shapeKey(plan) : true,
+			...(sample && { sample })
 		}
 	};
 }
@@ -84,22 +100,30 @@ export async function get(teamId: string, id: string, plan?: Plan): Promise<Reso
 	return row ? resolved(row, plan) : null;
 }
 
-/** The newest fresh calibration of the plan's shape in the team, or null. */
+/**
+ * The newest fresh synthetic calibration of the plan's shape in the team, or null. Records made on an
+ * uploaded sample serve only the plans that ask for them by id (forPlan): what one sample's rows
+ * measured is not what another dataset of the same shape would.
+ */
 export async function freshFor(teamId: string, plan: Plan): Promise<ResolvedCalibration | null> {
 	const since = new Date(Date.now() - MAX_AGE_DAYS * 86_400_000);
 	const [row] = await db
 		.select()
 		.from(calibrations)
-		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey(plan)), gt(calibrations.createdAt, since)))
+		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey(plan)), eq(calibrations.source, 'synthetic'), gt(calibrations.createdAt, since)))
 		.orderBy(desc(calibrations.createdAt))
 		.limit(1);
 	return row ? resolved(row, plan) : null;
 }
 
-/** The calibration an estimate should rest on: the newer of the one asked for and a fresh one of this shape, else the built-in one. */
+/**
+ * The calibration an estimate should rest on: the one asked for when it ran on an uploaded sample (real data
+ * beats synthetic), else the newer of the one asked for and a fresh synthetic one of this shape, else the built-in one.
+ */
 export async function forPlan(teamId: string, plan: Plan, calibrationId?: string | null): Promise<ResolvedCalibration> {
-	const fresh = await freshFor(teamId, plan);
 	const asked = calibrationId ? await get(teamId, calibrationId, plan) : null;
+	if (asked?.meta.source === 'sample') return asked;
+	const fresh = await freshFor(teamId, plan);
 	if (asked && (!fresh || asked.meta.createdAt >= fresh.meta.createdAt)) return asked;
 	return fresh ?? asked ?? builtInCalibration(plan);
 }

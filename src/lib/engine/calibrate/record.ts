@@ -49,6 +49,20 @@ export const kernelPointSchema = z.object({
 	rowBytes: z.number().positive().optional()
 });
 
+/** The data a calibration ran on: synthetic rows shaped like the plan, or rows of an uploaded sample. */
+export const calibrationDataSchema = z.discriminatedUnion('source', [
+	z.object({ source: z.literal('synthetic') }),
+	z.object({
+		source: z.literal('sample'),
+		/** rows the sample holds (no run used more) */
+		rows: z.number().int().positive(),
+		features: z.number().int().positive(),
+		uploadId: z.string().optional(),
+		/** the sample's file name as uploaded */
+		name: z.string().optional()
+	})
+]);
+
 export const calibrationRecordSchema = z.object({
 	kind: z.literal('loadline-calibration'),
 	version: z.literal(1),
@@ -66,7 +80,7 @@ export const calibrationRecordSchema = z.object({
 	}),
 	/** the plan this calibration was made for */
 	plan: planSchema,
-	/** feature dimension the synthetic data used (the plan's, capped to what this machine can hold) */
+	/** feature dimension the runs used (synthetic: the plan's, capped to what this machine can hold; sample: the sample's) */
 	features: z.number().int().positive(),
 	seeds: z.array(z.number().int()).min(1),
 	durationSeconds: z.number().nonnegative(),
@@ -74,10 +88,13 @@ export const calibrationRecordSchema = z.object({
 	/** unthrottled throughput in MB/s of uncompressed bytes: binary decode, text parse, gunzip */
 	decode: z.object({ binaryMBps: z.number().positive(), textMBps: z.number().positive(), gunzipMBps: z.number().positive() }),
 	runs: z.array(calibrationRunSchema).min(1),
+	/** what the runs ran on; absent in records made before samples could be used (synthetic) */
+	data: calibrationDataSchema.optional(),
 	/** what could not be emulated, in words */
 	notes: z.array(z.string())
 });
 
 export type CalibrationRun = z.infer<typeof calibrationRunSchema>;
+export type CalibrationData = z.infer<typeof calibrationDataSchema>;
 export type KernelPoint = z.infer<typeof kernelPointSchema>;
 export type CalibrationRecord = z.infer<typeof calibrationRecordSchema>;

@@ -20,6 +20,7 @@ import { budgetForRows, engineStateBytes, rowsInRamBytes } from '../model/sizes.
 import { fitKernelLines, kernelNs } from '../model/fit.js';
 import { measureCoreSpeed, measureKernel, REFERENCE_NS_PER_UPDATE } from './kernel.js';
 import { measureDecode } from './measure.js';
+import { openSample, type SampleInput } from './sample.js';
 import { STRATEGIES, type CalibrationRecord, type CalibrationRun, type KernelPoint } from './record.js';
 
 export interface CalibrationProgress {
@@ -44,6 +45,8 @@ export interface CalibrateOptions {
 	memoryBytes?: number;
 	/** folder for the synthetic files; default a fresh folder under the OS temp dir, removed at the end */
 	workDir?: string;
+	/** run on rows of this real sample (binary rows) instead of synthetic ones; its shape replaces the plan's dataset shape and caps the rows (calibrate/sample.ts); default none */
+	sample?: SampleInput;
 	onProgress?: (p: CalibrationProgress) => void;
 }
 
@@ -62,18 +65,21 @@ function median(xs: number[]): number {
 }
 
 export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promise<CalibrationRecord> {
+	const sample = opts.sample ? await openSample(opts.sample, opts.maxFeatures) : null;
+	if (sample) plan = sample.shape(plan);
 	const t0 = performance.now();
 	const elapsed = () => (performance.now() - t0) / 1000;
 	const budgetSeconds = opts.budgetSeconds ?? 75;
 	const seeds = opts.seeds ?? [1, 2];
 	const strategies = opts.strategies ?? [...STRATEGIES];
-	const maxRows = opts.maxRows ?? 200_000;
+	const maxRows = Math.min(opts.maxRows ?? 200_000, sample?.rows ?? Infinity);
 	const ds = plan.dataset;
 	const tr = plan.training;
 	const features = Math.min(ds.features, opts.maxFeatures ?? 2 ** 24);
 	const k = Math.min(ds.nnzPerRow, features);
 	const notes: string[] = [];
 	if (features < ds.features) notes.push(`synthetic data used ${features} features instead of ${ds.features} (weights capped at ${(features * 8) / 2 ** 20} MiB)`);
+	if (sample) notes.push(...sample.notes(Math.min(ds.rows, opts.maxRows ?? 200_000)));
 	const progress = (phase: CalibrationProgress['phase'], message: string) =>
 		opts.onProgress?.({ phase, fraction: phase === 'done' ? 1 : Math.min(0.99, elapsed() / budgetSeconds), message });
 	const owned = opts.workDir === undefined;
@@ -105,7 +111,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			let path = files.get(key);
 			if (!path) {
 				path = join(dir, `rows-${key}.${format}`);
-				await generateToFile({ rows, features, nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
+				if (sample) await sample.write(rows, seed, seeds[0], path, format);
+				else await generateToFile({ rows, features, nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
 				files.set(key, path);
 			}
 			return path;
@@ -237,6 +244,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			kernel: kernel.map((p) => ({ ...p, nsPerUpdate: p.nsPerUpdate * toTypical })),
 			decode: { binaryMBps: decode.binaryMBps / toTypical, textMBps: decode.textMBps / toTypical, gunzipMBps: decode.gunzipMBps / toTypical },
 			runs,
+			data: sample ? sample.data : { source: 'synthetic' },
 			notes
 		};
 		progress('done', `calibrated in ${elapsed().toFixed(1)} s`);

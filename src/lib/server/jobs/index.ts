@@ -9,7 +9,7 @@ import { db } from '../db/index.js';
 import { plans, type CalibrationJob } from '../db/schema.js';
 import { ApiError } from '../http.js';
 import type { Plan } from '$lib/schemas/plan.js';
-import { shapeKey, MAX_AGE_DAYS } from '../calibrations.js';
+import { shapeKey, sampleOf, MAX_AGE_DAYS } from '../calibrations.js';
 import * as limits from '../billing/limits.js';
 import { QUEUE_CALIBRATE, QUEUE_PARSE_UPLOAD } from './config.js';
 import { startBoss } from './queue.js';
@@ -49,18 +49,25 @@ export interface Enqueued {
 	joined: boolean;
 }
 
-export async function enqueue(o: { teamId: string; planId: string; plan: Plan; userId: string; force?: boolean }): Promise<Enqueued> {
+/**
+ * Queue a calibration, on synthetic data or on one of the team's parsed samples (`upload`, checked by
+ * uploads.forCalibration). Reuse and joining keep the data apart: a synthetic request takes only
+ * synthetic records and jobs of the shape, a sample request only those of the same upload.
+ */
+export async function enqueue(o: { teamId: string; planId: string; plan: Plan; userId: string; force?: boolean; upload?: { id: string } }): Promise<Enqueued> {
 	const key = shapeKey(o.plan);
+	const uploadId = o.upload?.id ?? null;
 	if (!o.force) {
-		const fresh = await store.freshCalibration(db, o.teamId, key, REUSE_DAYS);
+		const fresh = await store.freshCalibration(db, o.teamId, key, REUSE_DAYS, uploadId);
 		if (fresh) {
 			const job = await store.insert(db, {
 				teamId: o.teamId,
 				planId: o.planId,
+				uploadId,
 				shapeKey: key,
 				input: o.plan,
 				status: 'done',
-				phase: 'reused a calibration of the same shape',
+				phase: uploadId ? 'reused a calibration of the same shape on the same sample' : 'reused a calibration of the same shape',
 				fraction: 1,
 				calibrationId: fresh.id,
 				createdBy: o.userId
@@ -68,10 +75,10 @@ export async function enqueue(o: { teamId: string; planId: string; plan: Plan; u
 			return { job, reused: { calibrationId: fresh.id, createdAt: fresh.createdAt }, joined: false };
 		}
 	}
-	const active = await store.activeJob(db, o.teamId, key);
+	const active = await store.activeJob(db, o.teamId, key, uploadId);
 	if (active) return { job: active, reused: null, joined: true };
 	await limits.assert(o.teamId, 'calibrations');
-	const job = await store.insert(db, { teamId: o.teamId, planId: o.planId, shapeKey: key, input: o.plan, createdBy: o.userId });
+	const job = await store.insert(db, { teamId: o.teamId, planId: o.planId, uploadId, shapeKey: key, input: o.plan, createdBy: o.userId });
 	await submit(job);
 	return { job: (await store.get(db, job.id))!, reused: null, joined: false };
 }
@@ -117,7 +124,8 @@ export async function view(job: CalibrationJob, withRecord = false) {
 		calibrationId: job.calibrationId,
 		// a record older than the job was not made by it
 		reused: cal ? cal.createdAt.getTime() < job.createdAt.getTime() : false,
-		calibration: cal ? { id: cal.id, createdAt: cal.createdAt, source: cal.source, ...(withRecord && { record: cal.record }) } : null
+		uploadId: job.uploadId,
+		calibration: cal ? { id: cal.id, createdAt: cal.createdAt, source: cal.source, sample: sampleOf(cal.record), ...(withRecord && { record: cal.record }) } : null
 	};
 }
 

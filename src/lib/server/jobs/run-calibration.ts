@@ -12,10 +12,10 @@ export interface Running {
 	stop: () => void;
 }
 
-export function runCalibration(plan: Plan, options: ThreadInput['options'], onProgress: (phase: string, message: string) => void): Running {
+export function runCalibration(plan: Plan, options: ThreadInput['options'], onProgress: (phase: string, message: string) => void, sample?: ThreadInput['sample']): Running {
 	// our own folder: a stopped thread cannot clean up after itself
 	const workDir = mkdtempSync(join(tmpdir(), 'loadline-job-'));
-	const input: ThreadInput = { plan, options: { ...options, workDir } };
+	const input: ThreadInput = { plan, options: { ...options, workDir }, ...(sample && { sample }) };
 	const thread = new Worker(new URL('./calibration-thread-boot.mjs', import.meta.url), { workerData: input });
 	let stopped = false;
 	const result = new Promise<unknown | null>((resolve, reject) => {

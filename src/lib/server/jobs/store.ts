@@ -2,7 +2,7 @@
  * Calibration jobs and records in PostgreSQL, for the web app and the worker alike (each passes
  * its own Drizzle client). A job's row is what users see; the queue only carries its id.
  */
-import { and, desc, eq, gt, gte, inArray, lt, sql, TransactionRollbackError } from 'drizzle-orm';
+import { and, desc, eq, gt, gte, inArray, isNull, lt, sql, TransactionRollbackError } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { calibrationJobs, calibrations, type CalibrationJob } from '../db/schema.js';
 
@@ -14,24 +14,37 @@ export async function get(db: Db, id: string): Promise<CalibrationJob | null> {
 	return rows[0] ?? null;
 }
 
-/** The newest calibration of this shape in the team that is younger than maxAgeDays. */
-export async function freshCalibration(db: Db, teamId: string, shapeKey: string, maxAgeDays: number) {
+/**
+ * The newest calibration of this shape in the team that is younger than maxAgeDays, on the same data:
+ * synthetic when uploadId is null, else one made on that very upload (records of other samples never serve).
+ */
+export async function freshCalibration(db: Db, teamId: string, shapeKey: string, maxAgeDays: number, uploadId: string | null = null) {
 	const since = new Date(Date.now() - maxAgeDays * 86_400_000);
 	const rows = await db
 		.select({ id: calibrations.id, createdAt: calibrations.createdAt, source: calibrations.source })
 		.from(calibrations)
-		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey), gt(calibrations.createdAt, since)))
+		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey), gt(calibrations.createdAt, since), sameData(uploadId)))
 		.orderBy(desc(calibrations.createdAt))
 		.limit(1);
 	return rows[0] ?? null;
 }
 
-/** A queued or running job of this shape in the team, so a second request joins it. */
-export async function activeJob(db: Db, teamId: string, shapeKey: string) {
+const sameData = (uploadId: string | null) =>
+	uploadId ? and(eq(calibrations.source, 'sample'), eq(calibrations.uploadId, uploadId)) : eq(calibrations.source, 'synthetic');
+
+/** A queued or running job of this shape in the team on the same data (synthetic, or the same upload), so a second request joins it. */
+export async function activeJob(db: Db, teamId: string, shapeKey: string, uploadId: string | null = null) {
 	const rows = await db
 		.select()
 		.from(calibrationJobs)
-		.where(and(eq(calibrationJobs.teamId, teamId), eq(calibrationJobs.shapeKey, shapeKey), inArray(calibrationJobs.status, [...ACTIVE])))
+		.where(
+			and(
+				eq(calibrationJobs.teamId, teamId),
+				eq(calibrationJobs.shapeKey, shapeKey),
+				inArray(calibrationJobs.status, [...ACTIVE]),
+				uploadId ? eq(calibrationJobs.uploadId, uploadId) : isNull(calibrationJobs.uploadId)
+			)
+		)
 		.orderBy(desc(calibrationJobs.createdAt))
 		.limit(1);
 	return rows[0] ?? null;

@@ -14,6 +14,7 @@ import { runCalibration } from './run-calibration.js';
 import * as store from './store.js';
 import * as notify from './notify.js';
 import { parseUploadJob } from '../uploads/parse-job.js';
+import { sampleSource } from '../uploads/sample-source.js';
 
 export interface CalibrateJobData {
 	calibrationJobId: string;
@@ -46,10 +47,16 @@ export async function calibrateJob(db: Db, job: PgBoss.JobWithMetadata<Calibrate
 		await store.failed(db, id, `the plan is invalid: ${parsed.errors.map((e) => e.message).join('; ')}`, true);
 		return;
 	}
+	// a calibration on an uploaded sample: the upload must still be there and parsed
+	const sample = row.uploadId ? await sampleSource(db, row.uploadId, row.teamId) : undefined;
+	if (typeof sample === 'string') {
+		await store.failed(db, id, sample, true);
+		return log(`calibration ${id}: failed (${sample})`);
+	}
 	const s = queueSettings();
 	const started = Date.now();
 	let phase = 'starting';
-	const running = runCalibration(parsed.plan, { budgetSeconds: s.budgetSeconds, maxRows: s.maxRows }, (p, message) => (phase = `${p}: ${message}`));
+	const running = runCalibration(parsed.plan, { budgetSeconds: s.budgetSeconds, maxRows: s.maxRows }, (p, message) => (phase = `${p}: ${message}`), sample);
 	// the engine reports at phase changes; between them the bar follows the time budget, as the engine's own fraction does
 	const beat = setInterval(async () => {
 		const fraction = Math.min(0.99, (Date.now() - started) / 1000 / s.budgetSeconds);

@@ -105,3 +105,26 @@ export function view(u: Upload) {
 		updatedAt: u.updatedAt
 	};
 }
+
+/** The team's parsed samples, newest first, as a calibration offers them. */
+export async function ready(teamId: string) {
+	const rows = await db
+		.select({ id: uploads.id, fileName: uploads.fileName, profile: uploads.profile, createdAt: uploads.createdAt })
+		.from(uploads)
+		.where(and(eq(uploads.teamId, teamId), eq(uploads.status, 'ready')))
+		.orderBy(desc(uploads.createdAt))
+		.limit(200);
+	return rows.map((r) => ({ id: r.id, fileName: r.fileName, rows: (r.profile as { rows?: number } | null)?.rows ?? 0, createdAt: r.createdAt }));
+}
+
+/** The sample a calibration of this team may run on: 404 when it is not the team's, 400 when it is not parsed and ready. */
+export async function forCalibration(teamId: string, id: string) {
+	const u = await getInTeam(id, teamId);
+	if (!u) throw new ApiError(404, 'not_found', 'No such upload in this plan\'s team.', { uploadId: 'no such upload in this team' });
+	const rows = (u.profile as { rows?: number } | null)?.rows;
+	if (u.status !== 'ready' || !rows) {
+		const why = u.status === 'rejected' ? `was rejected (${u.error})` : 'is not parsed yet; try again when it is ready';
+		throw new ApiError(400, 'invalid', `Invalid uploadId: the sample ${u.fileName} ${why}.`, { uploadId: `the sample ${why}` });
+	}
+	return { id: u.id, fileName: u.fileName, rows };
+}

@@ -35,6 +35,8 @@ export interface SampleProfile {
 }
 
 type LineSink = (buf: Uint8Array, start: number, end: number, lineNo: number) => void;
+/** every good row as it is read: label ±1, 0-based ascending indices, values (the first `length` entries) */
+export type RowSink = (label: number, indices: ArrayLike<number>, values: ArrayLike<number>, length: number) => void;
 
 /** Call sink for every line of the file, each ending in '\n' (one is added to a last line without it). */
 async function eachLine(path: string, sink: LineSink): Promise<number> {
@@ -83,7 +85,10 @@ class Collector {
 	readonly bad: BadLine[] = [];
 	allOnes = true;
 
+	constructor(private readonly sink?: RowSink) {}
+
 	row(label: number, indices: ArrayLike<number>, values: ArrayLike<number>, length: number) {
+		this.sink?.(label, indices, values, length);
 		this.lines++;
 		for (let j = 0; j < length && this.allOnes; j++) if (values[j] !== 1) this.allOnes = false;
 		this.stats.add(label, length, length > 0 ? indices[length - 1] : -1);
@@ -116,8 +121,8 @@ class Collector {
 	}
 }
 
-export async function parseSvmlightSample(path: string): Promise<SampleProfile> {
-	const out = new Collector();
+export async function parseSvmlightSample(path: string, onRow?: RowSink): Promise<SampleProfile> {
+	const out = new Collector(onRow);
 	const fresh = () =>
 		new SvmlightParser({
 			batchRows: 1,
@@ -171,8 +176,8 @@ export function splitCsv(line: string): string[] {
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 /** CSV with a header row; the label column holds 1 / +1 (positive) or 0 / -1 (negative); other columns are numbers, empty = 0. */
-export async function parseCsvSample(path: string, labelColumn: string): Promise<SampleProfile> {
-	const out = new Collector();
+export async function parseCsvSample(path: string, labelColumn: string, onRow?: RowSink): Promise<SampleProfile> {
+	const out = new Collector(onRow);
 	let header: string[] | null = null;
 	let labelAt = -1;
 	let columns: string[] = [];
