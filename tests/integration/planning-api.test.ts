@@ -2,7 +2,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { client, latestMail, signIn } from '../helpers/session.js';
-import { addMember, closeDb, makeProject, makeTeam, makeUser, unique } from '../helpers/factories.js';
+import { addMember, closeDb, db, makeProject, makeTeam, makeUser, unique } from '../helpers/factories.js';
+import { calibrations } from '../../src/lib/server/db/schema.js';
 import { examplePlan, makeSavedPlan } from '../helpers/planning.js';
 import { parsePlan } from '../../src/lib/schemas/plan.js';
 
@@ -69,6 +70,34 @@ describe('/api/estimate', () => {
 	it('answers 404 for another team', async () => {
 		const other = await makeTeam();
 		expect((await editor('/api/estimate', { method: 'POST', json: { plan: examplePlan(), teamId: other.id } })).status).toBe(404);
+	});
+
+	// the editor's keystroke request: the same estimate without the curves (self-consistency, no outside source)
+	it('leaves out the what-if curves with whatIf: false and gives the same estimate', async () => {
+		const plan = withMachine({ ramGiB: 48 });
+		const plain = await editor('/api/estimate', { method: 'POST', json: { plan, teamId, whatIf: false } });
+		expect(plain.status).toBe(200);
+		const body = await plain.json();
+		expect(body).not.toHaveProperty('whatIf');
+		const full = await (await editor('/api/estimate', { method: 'POST', json: { plan, teamId, whatIf: true } })).json();
+		expect(full.whatIf.ramGiB.current).toBe(48);
+		expect(body.estimate).toEqual(full.estimate);
+		expect(body.calibration).toEqual(full.calibration);
+	});
+
+	it('names whatIf when it is not true or false', async () => {
+		const res = await editor('/api/estimate', { method: 'POST', json: { plan: examplePlan(), teamId, whatIf: 'yes' } });
+		expect(res.status).toBe(400);
+		expect((await res.json()).error.fields).toEqual({ whatIf: 'whatIf must be true or false' });
+	});
+
+	it('rests at once on a calibration the request names, though the lookup of its shape was just made', async () => {
+		const plan = withMachine({ ramGiB: 24 });
+		expect((await (await editor('/api/estimate', { method: 'POST', json: { plan, teamId, whatIf: false } })).json()).calibration.id).toBe('built-in');
+		const record = JSON.parse(readFileSync(new URL('../../src/lib/server/baseline-calibration.json', import.meta.url), 'utf8'));
+		const [row] = await db().insert(calibrations).values({ teamId, shapeKey: 'named-only', record }).returning();
+		const named = await (await editor('/api/estimate', { method: 'POST', json: { plan, teamId, whatIf: false, calibrationId: row.id } })).json();
+		expect(named.calibration).toMatchObject({ id: row.id, source: 'synthetic', sameShape: false });
 	});
 });
 

@@ -9,7 +9,9 @@ export const planName = z.string({ error: 'name is required' }).trim().min(1, 'n
 export const estimateRequest = z.object({
 	plan: planSchema,
 	teamId: uuid('teamId').optional(),
-	calibrationId: z.string().max(64).optional()
+	calibrationId: z.string().max(64).optional(),
+	/** the RAM and disk what-if curves (true when absent); the editor asks only when a field they depend on changed */
+	whatIf: z.boolean({ error: 'whatIf must be true or false' }).optional()
 });
 
 /** Create a plan, or import a PLAN.json (name taken from the plan when absent). */

@@ -1,4 +1,4 @@
-/** Estimates for a plan: the model's prediction on the calibration it rests on, plus what-if curves. */
+/** Estimates for a plan: the model's prediction on the calibration it rests on, plus what-if curves when asked for. */
 import { predict } from '$lib/engine/model/predict.js';
 import { LINE_RATES } from '$lib/engine/model/line-rates.js';
 import type { Estimate } from '$lib/engine/model/estimate.js';
@@ -22,6 +22,11 @@ export interface WhatIf {
 	points: WhatIfPoint[];
 }
 
+export interface WhatIfCurves {
+	ramGiB: WhatIf;
+	diskMBps: WhatIf;
+}
+
 export interface ConvergenceCurve {
 	strategy: StrategyName;
 	rows: number;
@@ -31,7 +36,8 @@ export interface ConvergenceCurve {
 export interface EstimateResponse {
 	estimate: Estimate;
 	calibration: calibrations.CalibrationMeta;
-	whatIf: { ramGiB: WhatIf; diskMBps: WhatIf };
+	/** absent when the request asked for no curves (`whatIf: false`) */
+	whatIf?: WhatIfCurves;
 	/** how the calibration's largest run of each strategy converged */
 	convergence: ConvergenceCurve[];
 	caution: string;
@@ -70,22 +76,64 @@ function diskGrid(plan: Plan): number[] {
 	return grid;
 }
 
-export function estimateOn(plan: Plan, resolved: calibrations.ResolvedCalibration): EstimateResponse {
+/** p50 wall time of every strategy over a RAM grid and a disk-speed grid, each with the plan's own value (26 or so predictions). */
+export function whatIfCurves(plan: Plan, record: CalibrationRecord): WhatIfCurves {
+	return {
+		ramGiB: { current: plan.machine.ramGiB, points: curve(plan, record, withCurrent(RAM_GRID, plan.machine.ramGiB), (p, v) => ({ ...p, machine: { ...p.machine, ramGiB: v } })) },
+		diskMBps: { current: plan.machine.diskMBps, points: curve(plan, record, withCurrent(diskGrid(plan), plan.machine.diskMBps), (p, v) => ({ ...p, machine: { ...p.machine, diskMBps: v } })) }
+	};
+}
+
+export function estimateOn(plan: Plan, resolved: calibrations.ResolvedCalibration, opts: { whatIf?: boolean } = {}): EstimateResponse {
 	const { record } = resolved;
 	return {
 		estimate: predict(plan, record),
 		calibration: resolved.meta,
-		whatIf: {
-			ramGiB: { current: plan.machine.ramGiB, points: curve(plan, record, withCurrent(RAM_GRID, plan.machine.ramGiB), (p, v) => ({ ...p, machine: { ...p.machine, ramGiB: v } })) },
-			diskMBps: { current: plan.machine.diskMBps, points: curve(plan, record, withCurrent(diskGrid(plan), plan.machine.diskMBps), (p, v) => ({ ...p, machine: { ...p.machine, diskMBps: v } })) }
-		},
+		...(opts.whatIf !== false && { whatIf: whatIfCurves(plan, record) }),
 		convergence: convergence(record),
 		caution: CAUTION
 	};
 }
 
-/** The estimate for a plan in a team (team calibrations of the same shape first, else the built-in one). */
+/** How long the live estimate reuses a team's calibration lookup: a calibration the worker finishes shows up within this. */
+export const CALIBRATION_TTL_MS = 5_000;
+const MAX_LOOKUPS = 1_000;
+const lookups = new Map<string, { at: number; resolved: Promise<calibrations.ResolvedCalibration> }>();
+
+/**
+ * calibrations.forPlan, reused for CALIBRATION_TTL_MS per team, shape and named calibration: the editor
+ * asks on every keystroke. A calibration the editor names by id (one that just finished) is a new key,
+ * so it is seen at once. An unchanged calibration keeps its record object, and with it the model's fit,
+ * which is cached per record object.
+ */
+function lookup(teamId: string, plan: Plan, calibrationId: string | null | undefined): Promise<calibrations.ResolvedCalibration> {
+	const key = `${teamId}|${calibrations.shapeKey(plan)}|${calibrationId ?? ''}`;
+	const now = Date.now();
+	const seen = lookups.get(key);
+	if (seen && now - seen.at < CALIBRATION_TTL_MS) return seen.resolved;
+	const resolved = calibrations.forPlan(teamId, plan, calibrationId).then(async (r) => {
+		const before = seen && (await seen.resolved.catch(() => null));
+		return before && before.meta.id === r.meta.id && before.meta.createdAt === r.meta.createdAt ? { ...r, record: before.record } : r;
+	});
+	lookups.delete(key);
+	if (lookups.size >= MAX_LOOKUPS) lookups.delete(lookups.keys().next().value!);
+	lookups.set(key, { at: now, resolved });
+	// a failed lookup is not kept
+	resolved.catch(() => lookups.get(key)?.resolved === resolved && lookups.delete(key));
+	return resolved;
+}
+
+/** The estimate for a plan in a team (team calibrations of the same shape first, else the built-in one), with what-if curves. */
 export async function forPlan(teamId: string | null, plan: Plan, calibrationId?: string | null): Promise<EstimateResponse> {
 	const resolved = teamId ? await calibrations.forPlan(teamId, plan, calibrationId) : calibrations.builtInCalibration(plan);
 	return estimateOn(plan, resolved);
+}
+
+/**
+ * The editor's live estimate (POST /api/estimate): as forPlan, but the calibration lookup is reused for a
+ * few seconds, and the what-if curves are left out when `whatIf` is false. Saves use forPlan.
+ */
+export async function live(teamId: string | null, plan: Plan, calibrationId: string | null | undefined, opts: { whatIf?: boolean } = {}): Promise<EstimateResponse> {
+	const resolved = teamId ? await lookup(teamId, plan, calibrationId) : calibrations.builtInCalibration(plan);
+	return estimateOn(plan, resolved, opts);
 }

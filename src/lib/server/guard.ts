@@ -36,8 +36,17 @@ export function allows(role: Role, need: Need): boolean {
 const isApi = (event: RequestEvent) => event.url.pathname.startsWith('/api/');
 export const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
+// locals.auth() runs a whole Auth.js session request (a database query) on each call: once per request is enough.
+const signedIn = new WeakMap<RequestEvent, Promise<SignedInUser>>();
+
 /** The signed-in user; pages redirect to sign-in, API routes answer 401. */
-export async function user(event: RequestEvent): Promise<SignedInUser> {
+export function user(event: RequestEvent): Promise<SignedInUser> {
+	let me = signedIn.get(event);
+	if (!me) signedIn.set(event, (me = lookUpUser(event)));
+	return me;
+}
+
+async function lookUpUser(event: RequestEvent): Promise<SignedInUser> {
 	const session = await event.locals.auth();
 	const u = session?.user;
 	if (!u?.id || !u.email) {
