@@ -130,6 +130,13 @@ describe('calibration on an uploaded sample', () => {
 
 	it('names uploadId when it is malformed or not parsed (400) and hides other teams\' uploads (404)', async () => {
 		const plan = await makePlan(teamId, projectId, smallPlan(0.8));
+		// the plan page offers the team's parsed samples beside synthetic data, and only those
+		const page = await (await editor(`/teams/${teamId}/plans/${plan.id}`)).text();
+		expect(page).toContain('synthetic data shaped like the plan');
+		expect(page).toContain('uploaded sample "breast-cancer.csv" (569 rows)');
+		expect(page).not.toContain('no-label.csv');
+		expect(page).not.toContain('theirs.csv');
+
 		const bad = await editor(`/api/plans/${plan.id}/calibrate`, { method: 'POST', json: { uploadId: 'sample-1' } });
 		expect(bad.status).toBe(400);
 		expect((await bad.json()).error.fields).toEqual({ uploadId: "uploadId must be the id of one of the team's uploaded samples" });
