@@ -2,8 +2,9 @@
  * Sparse kernels on one row of a compressed sparse row set: entries
  * indices[start..end) with values[start..end), or all ones when values is null.
  * No allocation; callers pass the dense vector. Offsets below 2³¹ take an integer loop
- * (a double loop counter costs a conversion per entry), and dot keeps four partial sums so
- * the loads of w, which miss the cache once w is large, overlap instead of queuing behind one add chain.
+ * (a double loop counter costs a conversion per entry). dot keeps four partial sums and axpy
+ * does four updates per step, so the accesses to w, which miss the cache once w is large,
+ * overlap instead of queuing behind one dependency chain.
  */
 
 const INT_LIMIT = 2 ** 31 - 1;
@@ -52,10 +53,32 @@ export function axpy(a: number, indices: Uint32Array, values: Float32Array | nul
 		return;
 	}
 	const b = end | 0;
+	let j = start | 0;
+	// four independent read-modify-writes per step, so their cache misses overlap (as in dot)
 	if (values === null) {
-		for (let j = start | 0; j < b; j++) w[indices[j]] += a;
+		for (; j + 3 < b; j += 4) {
+			const i0 = indices[j];
+			const i1 = indices[j + 1];
+			const i2 = indices[j + 2];
+			const i3 = indices[j + 3];
+			w[i0] += a;
+			w[i1] += a;
+			w[i2] += a;
+			w[i3] += a;
+		}
+		for (; j < b; j++) w[indices[j]] += a;
 	} else {
-		for (let j = start | 0; j < b; j++) w[indices[j]] += a * values[j];
+		for (; j + 3 < b; j += 4) {
+			const i0 = indices[j];
+			const i1 = indices[j + 1];
+			const i2 = indices[j + 2];
+			const i3 = indices[j + 3];
+			w[i0] += a * values[j];
+			w[i1] += a * values[j + 1];
+			w[i2] += a * values[j + 2];
+			w[i3] += a * values[j + 3];
+		}
+		for (; j < b; j++) w[indices[j]] += a * values[j];
 	}
 }
 

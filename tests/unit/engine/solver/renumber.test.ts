@@ -38,3 +38,19 @@ describe('renumbering features by popularity', () => {
 		});
 	});
 });
+
+describe('rows after renumbering', () => {
+	it('are sorted by their new indices, with each value still beside its feature', async () => {
+		const { renumberByPopularity } = await import('../../../../src/lib/engine/solver/renumber.js');
+		const rows = generateRows({ rows: 400, features: 5000, nnz: 20, values: 'real', seed: 9 });
+		const before = new Map<string, number>();
+		for (let i = 0; i < rows.n; i++) for (let p = rows.rowPtr[i]; p < rows.rowPtr[i + 1]; p++) before.set(`${i}:${rows.indices[p]}`, rows.values![p]);
+		const newIndex = renumberByPopularity(rows);
+		for (let i = 0; i < rows.n; i++) {
+			for (let p = rows.rowPtr[i] + 1; p < rows.rowPtr[i + 1]; p++) expect(rows.indices[p]).toBeGreaterThan(rows.indices[p - 1]);
+		}
+		const oldOf = new Uint32Array(rows.d);
+		for (let f = 0; f < rows.d; f++) oldOf[newIndex[f]] = f;
+		for (let i = 0; i < rows.n; i++) for (let p = rows.rowPtr[i]; p < rows.rowPtr[i + 1]; p++) expect(rows.values![p]).toBe(before.get(`${i}:${oldOf[rows.indices[p]]}`));
+	});
+});
