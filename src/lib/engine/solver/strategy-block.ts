@@ -13,6 +13,9 @@
  * Stopping: after each outer iteration the gap is estimated from the margin each example had
  * right after its own last update (no extra pass); when that estimate is ≤ tol a checking pass
  * over the blocks computes the exact primal, and the run stops only if the exact gap is ≤ tol.
+ * The estimate runs optimistic (other blocks move w after an example's margin was logged), so
+ * after a failed check the next one is scheduled where the exact gaps measured so far, extended
+ * as a straight line in ln gap, reach tol (between 1 and 16 outer iterations on).
  * The checking pass counts as a pass. No bias feature.
  * Counted memory: w (8d), α (8n), C − α (8n, logistic), the margin log (8n), the block(s) in RAM;
  * selective also the cache, the joined working set and a flag per example.
@@ -79,8 +82,9 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 		const { upper, diag } = lossTable(o.loss, o.C);
 		// block: one solver per block keeps its shrinking state (12 bytes per example, counted in `state`)
 		const blockSolvers: (CoordinateSolver | undefined)[] = [];
-		let checkWait = 1;
 		let nextCheck = 0;
+		// (outer iteration, ln exact gap) of the checks so far
+		const checks: { outer: number; lnGap: number }[] = [];
 
 		const exactCheck = async () => {
 			const sums = emptySums();
@@ -193,9 +197,9 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 					converged = true;
 					break;
 				}
-				// the estimate runs optimistic: back off the checks and re-examine every shrunk example
-				checkWait = Math.min(8, checkWait * 2);
-				nextCheck = outer + checkWait;
+				// the estimate runs optimistic: check again where the trend of the exact gaps reaches tol, and re-examine every shrunk example
+				checks.push({ outer, lnGap: Math.log(Math.max(gap, 1e-300)) });
+				nextCheck = outer + nextCheckIn(checks, Math.log(o.tol));
 				for (const s of blockSolvers) s?.tighten();
 			}
 		}
@@ -223,6 +227,16 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 	} finally {
 		set.dispose();
 	}
+}
+
+/** Outer iterations until the next exact check: where the last two checks' ln gap, as a line, meets ln tol. */
+function nextCheckIn(checks: { outer: number; lnGap: number }[], lnTol: number): number {
+	if (checks.length < 2) return 2;
+	const a = checks[checks.length - 2];
+	const b = checks[checks.length - 1];
+	const slope = (b.lnGap - a.lnGap) / (b.outer - a.outer);
+	if (!(slope < 0)) return 16;
+	return Math.min(16, Math.max(1, Math.ceil((lnTol - b.lnGap) / slope)));
 }
 
 /**
