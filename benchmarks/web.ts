@@ -33,6 +33,11 @@ buildIfStale(build);
 const port = await freePort();
 const app = await serveApp(port, { DATABASE_URL: url, AUTH_SECRET: randomBytes(32).toString('base64url'), SMTP_URL: 'smtp://127.0.0.1:1' }, build);
 const base = `http://127.0.0.1:${port}`;
+// a run that fails midway leaves no server or cluster behind
+process.on('exit', () => {
+	app.kill('SIGKILL');
+	stopCluster(dataDir);
+});
 
 // A signed-in member with a project and a few saved plans; the session row stands in for a magic-link sign-in.
 const { db, client } = createDb(url, 2);
@@ -106,13 +111,14 @@ const context = await browser.newContext();
 await context.addCookies([{ name: 'authjs.session-token', value: token, url: base }]);
 const page = await context.newPage();
 const js: { url: string; bytes: number; gzip: number }[] = [];
-page.on('response', async (res) => {
+const reading: Promise<void>[] = [];
+page.on('response', (res) => {
 	if (!res.url().endsWith('.js')) return;
-	const body = await res.body();
-	js.push({ url: res.url(), bytes: body.length, gzip: gzipSync(body, { level: 9 }).length });
+	reading.push(res.body().then((body) => void js.push({ url: res.url(), bytes: body.length, gzip: gzipSync(body, { level: 9 }).length })));
 });
 const [firstPlan] = (await (await fetch(`${base}/api/plans?projectId=${project.id}`, { headers })).json()).rows;
 await page.goto(`${base}/teams/${team.id}/plans/${firstPlan.id}`, { waitUntil: 'networkidle' });
+await Promise.all(reading); // every body read before the browser closes
 await browser.close();
 const jsBytes = js.reduce((s, f) => s + f.bytes, 0);
 const jsGzip = js.reduce((s, f) => s + f.gzip, 0);
