@@ -22,7 +22,7 @@ import { parseArgs } from 'node:util';
 import { generateToFile, type GenerateOptions } from '../src/lib/engine/data/generate.js';
 import { loadBinary, readBinaryHeader } from '../src/lib/engine/data/binary.js';
 import { solveRows } from '../src/lib/engine/solver/solve-rows.js';
-import { RENUMBER_MIN_WEIGHT_BYTES, renumberByPopularity } from '../src/lib/engine/solver/renumber.js';
+import { renumberByPopularity, renumbers } from '../src/lib/engine/solver/renumber.js';
 import { train } from '../src/lib/engine/solver/train.js';
 import type { StreamReport } from '../src/lib/engine/solver/strategy-stream.js';
 
@@ -96,7 +96,7 @@ for (const name of flags.sets.split(',')) {
 	log(`  ${one.s.toFixed(1)} s → ${llEpoch.toFixed(4)} s/epoch; ours`);
 	const rows = await loadBinary(bin);
 	const tr = performance.now();
-	if (h.d * 8 >= RENUMBER_MIN_WEIGHT_BYTES) renumberByPopularity(rows);
+	if (renumbers(h.d)) renumberByPopularity(rows);
 	const renumberSeconds = seconds(tr);
 	const cpu0 = process.cpuUsage();
 	const ours = solveRows(rows, { loss: 'hinge', C, tol: 1e-12, maxEpochs: 100_000, seed: 1, referenceStop: eps });
@@ -109,7 +109,7 @@ for (const name of flags.sets.split(',')) {
 	const ns = (s: number) => ((s / h.nnz) * 1e9).toFixed(2);
 	const wBytes = h.d * 8;
 	lines.push(
-		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} (${llCpuEpoch.toFixed(4)}) | ${ours.epochs} | ${ourEpoch.toFixed(4)} (${ourCpuEpoch.toFixed(4)}) | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× (${(ourCpuEpoch / llCpuEpoch).toFixed(2)}×) | ${ours.gapSeconds.toFixed(4)} | ${h.d * 8 >= RENUMBER_MIN_WEIGHT_BYTES ? renumberSeconds.toFixed(2) : '–'} | ${(one.s - llEpoch).toFixed(1)} | ${loadavg()[0].toFixed(1)} |`
+		`| ${name} (${h.n} × ${(h.nnz / h.n).toFixed(0)} nnz, d = ${h.d}) | ${(wBytes / 1e6).toFixed(1)} MB | ${full.iters} | ${llEpoch.toFixed(4)} (${llCpuEpoch.toFixed(4)}) | ${ours.epochs} | ${ourEpoch.toFixed(4)} (${ourCpuEpoch.toFixed(4)}) | ${ns(ourEpoch)} / ${ns(llEpoch)} | ${(ourEpoch / llEpoch).toFixed(2)}× (${(ourCpuEpoch / llCpuEpoch).toFixed(2)}×) | ${ours.gapSeconds.toFixed(4)} | ${renumbers(h.d) ? renumberSeconds.toFixed(2) : '–'} | ${(one.s - llEpoch).toFixed(1)} | ${loadavg()[0].toFixed(1)} |`
 	);
 	console.log(lines.join('\n'));
 }

@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import { and, desc, eq, gt } from 'drizzle-orm';
 import { db } from './db/index.js';
 import { calibrations } from './db/schema.js';
-import { calibrationDataSchema, calibrationRecordSchema, type CalibrationRecord } from '$lib/engine/calibrate/record.js';
+import { calibrationDataSchema, calibrationRecordSchema, type CalibrationData, type CalibrationRecord } from '$lib/engine/calibrate/record.js';
 import type { Plan } from '$lib/schemas/plan.js';
 import builtIn from './baseline-calibration.json';
 
@@ -51,7 +51,11 @@ export interface SampleUsed {
 /** The uploaded sample a stored record ran on, or null when it ran on synthetic data (or predates the field). */
 export function sampleOf(record: unknown): SampleUsed | null {
 	const data = calibrationDataSchema.safeParse((record as { data?: unknown } | null)?.data);
-	return data.success && data.data.source === 'sample' ? { name: data.data.name ?? null, rows: data.data.rows, uploadId: data.data.uploadId ?? null } : null;
+	return data.success ? sampleIn(data.data) : null;
+}
+
+function sampleIn(data: CalibrationData | undefined): SampleUsed | null {
+	return data?.source === 'sample' ? { name: data.name ?? null, rows: data.rows, uploadId: data.uploadId ?? null } : null;
 }
 
 export interface ResolvedCalibration {
@@ -78,7 +82,7 @@ export function builtInCalibration(plan?: Plan): ResolvedCalibration {
 
 function resolved(row: typeof calibrations.$inferSelect, plan: Plan | undefined): ResolvedCalibration {
 	const record = calibrationRecordSchema.parse(row.record);
-	const sample = row.source === 'sample' ? sampleOf(record) : null;
+	const sample = row.source === 'sample' ? sampleIn(record.data) : null;
 	return {
 		record,
 		meta: {

@@ -7,6 +7,7 @@
  */
 import type { Plan } from '../../schemas/plan.js';
 import type { SparseRows } from '../types.js';
+import type { CalibrationData } from './record.js';
 import { existsSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { BinaryRowWriter, loadBinary, readBinaryHeader } from '../data/binary.js';
@@ -30,13 +31,7 @@ export interface SampleInput {
 }
 
 /** What the record says about its data (CalibrationRecord.data for a sample). */
-export interface SampleData {
-	source: 'sample';
-	rows: number;
-	features: number;
-	uploadId?: string;
-	name?: string;
-}
+export type SampleData = Extract<CalibrationData, { source: 'sample' }>;
 
 export interface OpenSample {
 	rows: number;

@@ -14,6 +14,9 @@ import type { SparseRows } from '../types.js';
 /** Weight vectors smaller than this stay in the caches anyway; renumbering would not pay. */
 export const RENUMBER_MIN_WEIGHT_BYTES = 4 << 20;
 
+/** Whether a strategy renumbers the features of a dataset with d features (8 bytes of w each). */
+export const renumbers = (d: number) => d * 8 >= RENUMBER_MIN_WEIGHT_BYTES;
+
 /** newIndex[j] for every old feature j; counting sort, most frequent first, ties by old index. */
 export function popularityOrder(indices: Uint32Array, d: number): Uint32Array {
 	const count = new Uint32Array(d);

@@ -11,29 +11,27 @@ import { OptionError } from './options.js';
 import { Meter, hitRate, stateBytes } from './meter.js';
 import { solveRows } from './solve-rows.js';
 import { workingSetBytes } from './rows.js';
-import { RENUMBER_MIN_WEIGHT_BYTES, renumberByPopularity, weightsInOldOrder } from './renumber.js';
+import { renumberByPopularity, renumbers, weightsInOldOrder } from './renumber.js';
 
 /** the loader's two read buffers (one read ahead) */
 const CHUNK_BYTES = 8 << 20;
 
 /** What the memory strategy counts besides the rows: w, α (+ C − α), read buffers, the renumbering map. */
 export function memoryStateBytes(n: number, d: number, logistic: boolean): number {
-	return stateBytes(n, d, logistic, false) + 2 * CHUNK_BYTES + (d * 8 >= RENUMBER_MIN_WEIGHT_BYTES ? 4 * d : 0);
+	return stateBytes(n, d, logistic, false) + 2 * CHUNK_BYTES + (renumbers(d) ? 4 * d : 0);
 }
 
 export async function trainMemory(o: ResolvedOptions): Promise<TrainReport> {
 	const meter = new Meter();
 	const h = await readBinaryHeader(o.data);
-	const chunkBytes = CHUNK_BYTES;
-	const renumber = h.d * 8 >= RENUMBER_MIN_WEIGHT_BYTES;
 	const need = workingSetBytes(h.n, h.nnz, h.valueKind === 'real') + memoryStateBytes(h.n, h.d, o.loss === 'logistic');
 	if (need > o.memoryBytes) throw new OptionError(`memoryBytes: the memory strategy needs ${need} bytes for ${h.n} rows, the budget is ${o.memoryBytes}`);
-	const rows = await meter.read(() => loadBinary(o.data, { throttleMBps: o.diskMBps, chunkBytes }));
+	const rows = await meter.read(() => loadBinary(o.data, { throttleMBps: o.diskMBps, chunkBytes: CHUNK_BYTES }));
 	meter.passes = 1;
 	meter.exampleReads = rows.n;
 	meter.hold(need);
 	const readSeconds = meter.readMs / 1000;
-	const newIndex = renumber ? meter.compute(() => renumberByPopularity(rows)) : null;
+	const newIndex = renumbers(h.d) ? meter.compute(() => renumberByPopularity(rows)) : null;
 	const s = meter.compute(() =>
 		solveRows(rows, {
 			loss: o.loss,
