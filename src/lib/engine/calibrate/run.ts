@@ -16,7 +16,7 @@ import type { StrategyName } from '../types.js';
 import { generateToFile, GENERATE_DEFAULTS } from '../data/generate.js';
 import { train } from '../solver/train.js';
 import { budgetShape, binaryBytesPerRow, updatesPerRead } from '../model/ratios.js';
-import { budgetForRows, engineStateBytes, rowsInRamBytes } from '../model/sizes.js';
+import { budgetForRows, cachedRowsBytes, engineStateBytes } from '../model/sizes.js';
 import { fitKernelLines, kernelNs } from '../model/fit.js';
 import { measureCoreSpeed, measureKernel, REFERENCE_NS_PER_UPDATE } from './kernel.js';
 import { measureDecode } from './measure.js';
@@ -57,6 +57,8 @@ const MIN_FRACTION = 1 / 16;
 /** budget bytes each strategy needs beyond its state to run at all (engine minimums with headroom) */
 const MIN_BUDGET: Record<StrategyName, number> = { memory: 0, block: 96 * 1024, selective: 384 * 1024, stream: 256 * 1024 };
 const MIN_ROWS = 1000;
+/** budget over the rows' bytes when the target holds all of them */
+const FULL_HEADROOM = 1.05;
 
 function median(xs: number[]): number {
 	const s = [...xs].sort((a, b) => a - b);
@@ -143,15 +145,17 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			const targetFraction = budgetShape(plan, s, ds.rows, opts.memoryBytes).cacheFraction;
 			const f1 = s === 'memory' ? 1 : Math.min(1, Math.max(MIN_FRACTION, targetFraction));
 			const f2 = s === 'memory' ? 1 : f1 < 1 ? Math.min(1, f1 * 2) : 0.5;
-			const bytesPerRowRam = rowsInRamBytes(1000, k, ds.valueKind) / 1000;
+			const bytesPerRowRam = cachedRowsBytes(s, 1000, k, ds.valueKind) / 1000;
 			// rows so that the smallest budget holds the engine's minimum
 			const needRows = Math.ceil(MIN_BUDGET[s] / (Math.min(f1, f2) * bytesPerRowRam));
 			const pilotRows = Math.min(ds.rows, maxRows, Math.max(MIN_ROWS, needRows));
 			const runOne = async (rows: number, seed: number, fraction: number, readBps: number): Promise<CalibrationRun> => {
 				const data = await dataFile(rows, seed);
 				const logistic = tr.loss === 'logistic';
-				const rowsRam = rowsInRamBytes(rows, k, ds.valueKind);
-				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(fraction * rowsRam, MIN_BUDGET[s]));
+				const rowsRam = cachedRowsBytes(s, rows, k, ds.valueKind);
+				// a whole-data budget gets headroom: generated row lengths scatter around k, and a cache a few rows short re-reads the file
+				const rowBytes = fraction >= 1 ? rowsRam * FULL_HEADROOM : fraction * rowsRam;
+				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(rowBytes, MIN_BUDGET[s]));
 				const state = engineStateBytes(s, rows, features, logistic, memoryBytes);
 				const diskMBps = throttle(readBps);
 				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps });

@@ -5,7 +5,7 @@
  */
 import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
-import { binaryBytes, engineStateBytes, rowsInRamBytes, usableRamBytes } from './sizes.js';
+import { binaryBytes, cachedRowsBytes, engineStateBytes, usableRamBytes } from './sizes.js';
 
 /** Node runtime, read buffers and bookkeeping beside what the engine counts (measured peak RSS of small runs is ~100 MiB; rounded up) */
 export const RUNTIME_BYTES = 128 * 2 ** 20;
@@ -15,7 +15,7 @@ export interface BudgetShape {
 	budget: number;
 	/** what the engine counts besides rows: w, α, margin log */
 	state: number;
-	/** rows in RAM as the solver holds them */
+	/** every row in RAM as the strategy holds them (stream: its cache records) */
 	rowsRam: number;
 	/** (budget − state) / rowsRam, capped at 1 */
 	cacheFraction: number;
@@ -26,7 +26,7 @@ export function budgetShape(plan: Plan, strategy: StrategyName, rows: number, me
 	const ds = plan.dataset;
 	const budget = memoryBytes ?? Math.max(0, usableRamBytes(plan.machine.ramGiB) - RUNTIME_BYTES);
 	const state = engineStateBytes(strategy, rows, ds.features, plan.training.loss === 'logistic', budget);
-	const rowsRam = rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind);
+	const rowsRam = cachedRowsBytes(strategy, rows, ds.nnzPerRow, ds.valueKind);
 	return { budget, state, rowsRam, cacheFraction: Math.min(1, Math.max(1, budget - state) / rowsRam) };
 }
 

@@ -7,6 +7,7 @@ import type { Dataset } from '../../schemas/plan.js';
 import { workingSetBytes } from '../solver/rows.js';
 import { stateBytes } from '../solver/meter.js';
 import { memoryStateBytes } from '../solver/strategy-memory.js';
+import { streamCacheBytes } from '../solver/stream-cache.js';
 
 export const GiB = 1024 ** 3;
 /** rows per chunk record in binary files the engine writes */
@@ -51,6 +52,14 @@ export function bytesOnDisk(ds: Dataset): number {
 /** Bytes of rows held in RAM as the solver holds them (solver/rows.ts). */
 export function rowsInRamBytes(rows: number, nnzPerRow: number, valueKind: Dataset['valueKind']): number {
 	return workingSetBytes(rows, rows * nnzPerRow, valueKind === 'real');
+}
+
+/**
+ * Bytes a strategy needs to hold every row at once: the solver's rows (memory, block, selective)
+ * or the stream cache's row records (solver/stream-cache.ts), which carry a longer header per row.
+ */
+export function cachedRowsBytes(strategy: 'memory' | 'block' | 'selective' | 'stream', rows: number, nnzPerRow: number, valueKind: Dataset['valueKind']): number {
+	return strategy === 'stream' ? streamCacheBytes(rows, rows * nnzPerRow, valueKind === 'real') : rowsInRamBytes(rows, nnzPerRow, valueKind);
 }
 
 /** Weight vector w: d float64. */

@@ -33,6 +33,7 @@ import {
 	C_ERROR,
 	C_EVICTED,
 	C_FREED,
+	C_NEED_WORDS,
 	C_PASSES,
 	C_PAUSE,
 	C_PUBLISHED,
@@ -47,6 +48,8 @@ import {
 	SEG_OWNED,
 	SEG_READY,
 	allocateCache,
+	cacheBytesPerWord,
+	streamCacheBytes,
 	lock,
 	sharedBytes,
 	unlock,
@@ -77,12 +80,14 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 	const S = o.segments;
 	const state = stateBytes(n, d, logistic, true);
 	const chunkBytes = Math.max(64 * 1024, Math.min(8 << 20, Math.floor(o.memoryBytes / 16)));
-	const bytesPerWord = 4 + (real ? 4 : 0) + 5 / (ROW_HEADER_WORDS + 1);
+	const bytesPerWord = cacheBytesPerWord(real);
 	const fixed = state + n + 2 * chunkBytes + 1024;
-	const segmentWords = Math.floor((o.memoryBytes - fixed) / bytesPerWord / S);
-	if (segmentWords < 256) {
+	const budgetWords = Math.floor((o.memoryBytes - fixed) / bytesPerWord / S);
+	if (budgetWords < 256) {
 		throw new OptionError(`memoryBytes: ${o.memoryBytes} bytes leave too little for a ${S}-segment cache after w, α, the margin log and read buffers (${fixed} bytes)`);
 	}
+	// a budget larger than the whole file allocates only what holds every row
+	const segmentWords = Math.min(budgetWords, Math.ceil(streamCacheBytes(n, h.nnz, real, S) / bytesPerWord / S));
 	const maxRows = Math.floor((S * segmentWords) / (ROW_HEADER_WORDS + 1));
 	const buffers = allocateCache({ segments: S, segmentWords, real }, n);
 	const cache = viewCache(buffers);
@@ -107,7 +112,7 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 
 	// a .mjs bootstrap registers tsx in the worker, so the TypeScript reader runs under tsx and vitest alike
 	const worker = new Worker(new URL('./stream-reader-boot.mjs', import.meta.url), {
-		workerData: { path: o.data, buffers, chunkBytes, diskMBps: o.diskMBps, logReads: o.onRead !== undefined } satisfies ReaderData
+		workerData: { path: o.data, buffers, chunkBytes, diskMBps: o.diskMBps, rows: n, logReads: o.onRead !== undefined } satisfies ReaderData
 	});
 	const finished = new Promise<ReaderResult>((resolve) => {
 		worker.once('message', (m: ReaderResult) => resolve(m));
@@ -208,9 +213,30 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		table[s * SEG_FIELDS + 1] = dst;
 		table[s * SEG_FIELDS + 2] = dst;
 		table[s * SEG_FIELDS] = SEG_FREE;
+		// the reader finds this segment on its next look; it raises the flag again if that is not enough
+		Atomics.store(control, C_READER_WAITING, 0);
 		unlock(control);
 		Atomics.add(control, C_FREED, 1);
 		Atomics.notify(control, C_FREED);
+	};
+
+	/**
+	 * A reader that waits for room first gets back the unused tails of segments published part-full
+	 * (to feed a hungry trainer): appending there costs no eviction. True when a tail was handed back.
+	 */
+	// below the slack streamCacheBytes leaves per segment (4 mean rows), so a cache sized to hold every row does
+	const minTail = 2 * (ROW_HEADER_WORDS + h.nnz / Math.max(1, n));
+	const returnTails = (): boolean => {
+		if (Atomics.load(control, C_READER_WAITING) !== 1) return false;
+		let returned = false;
+		for (let s = 0; s < S; s++) {
+			if (table[s * SEG_FIELDS] !== SEG_OWNED) continue;
+			if ((s + 1) * segmentWords - ingestedTo[s] >= Math.max(minTail, Atomics.load(control, C_NEED_WORDS))) {
+				compact(s);
+				returned = true;
+			}
+		}
+		return returned;
 	};
 
 	const reclaim = () => {
@@ -220,7 +246,7 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 			Atomics.notify(control, C_EVICTED);
 			evictions = 0;
 		}
-		if (Atomics.load(control, C_READER_WAITING) !== 1) return;
+		if (Atomics.load(control, C_READER_WAITING) !== 1 || returnTails()) return;
 		let freed = false;
 		for (let s = 0; s < S; s++) {
 			if (table[s * SEG_FIELDS] !== SEG_OWNED) continue;
@@ -319,12 +345,11 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 			pgMaxOld = pgMax <= 0 ? Infinity : pgMax;
 			pgMinOld = pgMin >= 0 ? -Infinity : pgMin;
 		}
-		// evict only when the reader needs room: with a cache that holds everything, nothing is re-read
-		const pressure = Atomics.load(control, C_READER_WAITING) === 1;
+		// evict only when the reader needs room and no free tail can give it: with a cache that holds everything, nothing is re-read
+		const pressure = Atomics.load(control, C_READER_WAITING) === 1 && !returnTails();
 		for (let r = R - 1; r >= 0; r--) {
 			if (evict[r] === 1) {
 				evict[r] = 0;
-				if (pressure) removeAt(r);
 			}
 		}
 	};
@@ -397,7 +422,8 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 				const estimate = relativeGap(primalFrom(w, C, lossSumOfMargins(o.loss, margins)), dualFrom(o.loss, C, w, alpha, comp));
 				meter.trace.push({ seconds: meter.seconds(), gap: estimate });
 				o.onProgress?.({ seconds: meter.seconds(), gap: estimate, epochs: visits / n });
-				if (estimate <= o.tol && estimates >= nextCheckAt) {
+				// a check from the cache (every row resident) costs less than a sweep: no backing off then
+				if (estimate <= o.tol && (estimates >= nextCheckAt || R === n)) {
 					await exactCheck();
 					if (gap <= o.tol) {
 						converged = true;

@@ -16,6 +16,21 @@ export const ROW_HEADER_WORDS = 5;
 export const FLAG_NEGATIVE = 1;
 export const FLAG_EVICTED = 2;
 
+/**
+ * Cache bytes per 32-bit word of a row record: its index word, its value word (real data), and the
+ * trainer's resident list and eviction mark (5 bytes per row) spread over the words of the shortest row.
+ */
+export const cacheBytesPerWord = (real: boolean) => 4 + (real ? 4 : 0) + 5 / (ROW_HEADER_WORDS + 1);
+
+/**
+ * Cache bytes that hold `rows` rows of `nnz` nonzeros in all, in `segments` segments: the row
+ * records plus, per segment, the unused tail a row too long for it leaves (up to a row of 4× the mean).
+ */
+export function streamCacheBytes(rows: number, nnz: number, real: boolean, segments = 16): number {
+	const meanWords = ROW_HEADER_WORDS + nnz / Math.max(1, rows);
+	return (rows * ROW_HEADER_WORDS + nnz + segments * 4 * meanWords) * cacheBytesPerWord(real);
+}
+
 /** control words */
 export const C_LOCK = 0;
 /** bumped whenever a segment is handed back to the reader */
@@ -35,6 +50,8 @@ export const C_PAUSED = 8;
 export const C_TRAINER_HUNGRY = 9;
 /** bumped by the trainer after evictions (a reader idling on a fully cached file wakes up) */
 export const C_EVICTED = 10;
+/** words of the row the reader waits to place (the trainer hands back only tails that hold it) */
+export const C_NEED_WORDS = 11;
 export const CONTROL_WORDS = 16;
 
 /** segment states */

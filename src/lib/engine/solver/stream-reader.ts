@@ -11,6 +11,7 @@ import {
 	C_ERROR,
 	C_EVICTED,
 	C_FREED,
+	C_NEED_WORDS,
 	C_PASSES,
 	C_PAUSE,
 	C_PAUSED,
@@ -38,6 +39,8 @@ export interface ReaderData {
 	buffers: SharedBuffers;
 	chunkBytes: number;
 	diskMBps: number | undefined;
+	/** rows in the file: a pass is skipped while every one of them is resident */
+	rows: number;
 	/** keep a log of every read (pass, offset, bytes) for tests */
 	logReads: boolean;
 }
@@ -76,16 +79,19 @@ async function run(data: ReaderData): Promise<ReaderResult> {
 			if (stopped()) return false;
 			lock(control);
 			const S = cache.layout.segments;
+			// the free segment with the most room: a handed-back tail only when nothing emptier is free
+			let best = -1;
 			for (let s = 0; s < S; s++) {
-				if (table[s * SEG_FIELDS] === SEG_FREE) {
-					table[s * SEG_FIELDS] = SEG_FILLING;
-					unlock(control);
-					seg = s;
-					pos = table[s * SEG_FIELDS + 1];
-					segEnd = (s + 1) * segmentWords;
-					Atomics.store(control, C_READER_WAITING, 0);
-					return true;
-				}
+				if (table[s * SEG_FIELDS] === SEG_FREE && (best < 0 || table[s * SEG_FIELDS + 1] - s * segmentWords < table[best * SEG_FIELDS + 1] - best * segmentWords)) best = s;
+			}
+			if (best >= 0) {
+				table[best * SEG_FIELDS] = SEG_FILLING;
+				unlock(control);
+				seg = best;
+				pos = table[best * SEG_FIELDS + 1];
+				segEnd = (best + 1) * segmentWords;
+				Atomics.store(control, C_READER_WAITING, 0);
+				return true;
 			}
 			const freed = Atomics.load(control, C_FREED);
 			Atomics.store(control, C_READER_WAITING, 1);
@@ -101,7 +107,15 @@ async function run(data: ReaderData): Promise<ReaderResult> {
 		Atomics.store(control, C_PAUSED, 0);
 	};
 
+	/** rows inserted minus rows the trainer reported evicted (the report lags, so this may overstate) */
+	const resident = () => stats[2] - Atomics.load(control, C_EVICTED);
 	for (;;) {
+		// every row resident: reading the file again would insert nothing, so wait for evictions first
+		while (!stopped() && resident() >= data.rows) {
+			const evicted = Atomics.load(control, C_EVICTED);
+			if (resident() >= data.rows) Atomics.wait(control, C_EVICTED, evicted, 20);
+		}
+		if (stopped()) return { reads };
 		const insertedBefore = stats[2];
 		const evictedBefore = Atomics.load(control, C_EVICTED);
 		let t = performance.now();
@@ -125,8 +139,14 @@ async function run(data: ReaderData): Promise<ReaderResult> {
 					const words = ROW_HEADER_WORDS + len;
 					if (seg < 0 || pos + words > segEnd) {
 						publish();
-						if (!acquire()) return { reads };
-						if (pos + words > segEnd) throw new Error(`row ${gid} (${len} nonzeros) does not fit one cache segment of ${segmentWords} words; raise memoryBytes or lower segments`);
+						Atomics.store(control, C_NEED_WORDS, words);
+						for (;;) {
+							if (!acquire()) return { reads };
+							if (pos + words <= segEnd) break;
+							if (pos === seg * segmentWords) throw new Error(`row ${gid} (${len} nonzeros) does not fit one cache segment of ${segmentWords} words; raise memoryBytes or lower segments`);
+							// a handed-back tail too short for this row goes back unchanged
+							publish();
+						}
 					}
 					idx[pos] = gid;
 					idx[pos + 1] = len;

@@ -6,6 +6,8 @@ import type { Loss, StrategyName, TrainReport } from '../../../../src/lib/engine
 import { generateToFile } from '../../../../src/lib/engine/data/generate.js';
 import { train } from '../../../../src/lib/engine/solver/train.js';
 import type { StreamReport } from '../../../../src/lib/engine/solver/strategy-stream.js';
+import { streamCacheBytes } from '../../../../src/lib/engine/solver/stream-cache.js';
+import { budgetForRows } from '../../../../src/lib/engine/model/sizes.js';
 
 let dir = '';
 let data = '';
@@ -71,6 +73,20 @@ describe('the four strategies', () => {
 			expect(reads[i][1]).toBe(reads[i - 1][1] + reads[i - 1][2]);
 		}
 		expect(r.gap).toBeLessThanOrEqual(TOL);
+	});
+
+	it('stream with a budget that holds every row reads the file once and allocates only what the rows need', async () => {
+		// the budget is 5 % over the rows' cache records (stream-cache.ts); a reader that re-reads here wastes a disk pass
+		const rowsBytes = streamCacheBytes(SHAPE.rows, SHAPE.rows * SHAPE.nnz, true);
+		for (const seed of [1, 2, 3]) {
+			const r = (await run('stream', 'hinge', { memoryBytes: budgetForRows('stream', SHAPE.rows, SHAPE.features, false, rowsBytes * 1.05), seed, diskMBps: 20 })) as StreamReport;
+			expect(r.passes, `seed ${seed}`).toBe(1);
+			expect(r.gap).toBeLessThanOrEqual(TOL);
+			// what reaches the trainer is read once: hit rate = 1 − n/visits
+			expect(r.cacheHitRate).toBeCloseTo(1 - SHAPE.rows / r.updates, 12);
+		}
+		const huge = (await run('stream', 'hinge', { memoryBytes: 1 << 30 })) as StreamReport;
+		expect(huge.cacheBytes).toBeLessThan(rowsBytes * 1.1);
 	});
 
 	it('bad options are errors naming the field', async () => {
