@@ -34,6 +34,8 @@ export const calibrationRunSchema = z.object({
 	peakMemoryBytes: z.number(),
 	outerIterations: z.number(),
 	gap: z.number(),
+	/** stopped by the calibration's time cap on its epochs, short of tol: kept for the record, left out of the fit */
+	capped: z.boolean().optional(),
 	/** (seconds, relative duality gap) as the run converged; absent in records made before it was kept */
 	trace: z.array(z.object({ seconds: z.number(), gap: z.number() })).optional(),
 	/** ns per update of the reference kernel measured just before this strategy's runs (machine load at the time) */

@@ -15,6 +15,7 @@ import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
 import { generateToFile, GENERATE_DEFAULTS } from '../data/generate.js';
 import { train } from '../solver/train.js';
+import { DEFAULT_MAX_EPOCHS } from '../solver/options.js';
 import { budgetShape, binaryBytesPerRow, updatesPerRead } from '../model/ratios.js';
 import { budgetForRows, cachedRowsBytes, engineStateBytes } from '../model/sizes.js';
 import { fitKernelLines, kernelNs } from '../model/fit.js';
@@ -149,7 +150,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			// rows so that the smallest budget holds the engine's minimum
 			const needRows = Math.ceil(MIN_BUDGET[s] / (Math.min(f1, f2) * bytesPerRowRam));
 			const pilotRows = Math.min(ds.rows, maxRows, Math.max(MIN_ROWS, needRows));
-			const runOne = async (rows: number, seed: number, fraction: number, readBps: number): Promise<CalibrationRun> => {
+			/** `maxEpochs`: a cap from the time left (extra runs); a run stopped by it is marked capped */
+			const runOne = async (rows: number, seed: number, fraction: number, readBps: number, maxEpochs?: number): Promise<CalibrationRun> => {
 				const data = await dataFile(rows, seed);
 				const logistic = tr.loss === 'logistic';
 				const rowsRam = cachedRowsBytes(s, rows, k, ds.valueKind);
@@ -158,10 +160,12 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(rowBytes, MIN_BUDGET[s]));
 				const state = engineStateBytes(s, rows, features, logistic, memoryBytes);
 				const diskMBps = throttle(readBps);
-				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps });
+				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps, ...(maxEpochs !== undefined ? { maxEpochs } : {}) });
+				const capped = maxEpochs !== undefined && maxEpochs < DEFAULT_MAX_EPOCHS && rep.gap > tr.tol;
 				const bytesOnDisk = binaryBytesPerRow(rows, k, ds.valueKind) * rows;
 				const rate = Math.min(diskMBps ? diskMBps * 1e6 : Infinity, decodeBps);
-				if (rep.gap > tr.tol) notes.push(`${s} at ${rows} rows stopped at the epoch limit with gap ${rep.gap.toPrecision(3)} above tol`);
+				if (capped) notes.push(`${s} at ${rows} rows, cache fraction ${fraction.toPrecision(2)}: stopped after ${rep.epochs.toFixed(0)} epochs by the calibration's time budget (gap ${rep.gap.toPrecision(3)}); left out of the fit`);
+				else if (rep.gap > tr.tol) notes.push(`${s} at ${rows} rows stopped at the epoch limit with gap ${rep.gap.toPrecision(3)} above tol`);
 				const run: CalibrationRun = {
 					strategy: s,
 					rows,
@@ -182,6 +186,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 					peakMemoryBytes: rep.peakMemoryBytes,
 					outerIterations: rep.outerIterations,
 					gap: rep.gap,
+					...(capped ? { capped } : {}),
 					referenceNs,
 					// at most 40 (seconds, gap) points: enough for the convergence chart, small in the record
 					trace: rep.trace.filter((_, i, all) => all.length <= 40 || i % Math.ceil(all.length / 40) === 0 || i === all.length - 1)
@@ -216,12 +221,19 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			const at = ladder.length >= 2 ? ladder[ladder.length - 2] : ladder[0];
 			const seed2 = seeds[1] ?? seeds[0] + 1;
 			const fits = () => elapsed() - started + at.wallSeconds * 1.5 <= share;
-			if (fits()) await runOne(at.rows, seed2, f1, calReadBps);
-			if (s !== 'memory' && fits()) await runOne(at.rows, seeds[0], f2, calReadBps);
+			// an extra run at other settings may converge far slower than the rung it copies (block minimization
+			// with twice the blocks): its epochs are capped by the share left, at the rate the rung ran
+			const epochCap = (rung: CalibrationRun) => {
+				const perEpoch = rung.wallSeconds / Math.max(1, rung.epochs);
+				return Math.max(5, Math.min(DEFAULT_MAX_EPOCHS, Math.floor((share - (elapsed() - started)) / Math.max(1e-6, perEpoch))));
+			};
+			if (fits()) await runOne(at.rows, seed2, f1, calReadBps, epochCap(at));
+			// the second cache fraction on the smallest rung: its cost is the least predictable
+			if (s !== 'memory' && fits()) await runOne(ladder[0].rows, seeds[0], f2, calReadBps, epochCap(ladder[0]));
 			if (s === 'stream' && fits()) {
 				// a second trainer-to-reader ratio: a 4× faster reader when the throttle allows, else half speed
 				const faster = calReadBps * 4 < decodeBps * 0.9;
-				await runOne(at.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2);
+				await runOne(at.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2, epochCap(at));
 			}
 		}
 		// other load on the machine moves single measurements: state everything at the median load

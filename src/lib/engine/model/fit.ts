@@ -171,7 +171,7 @@ function fitCost(model: number[], measured: number[]): { ratio: number; fixed: n
 }
 
 function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: FootprintPoint[], strategy: StrategyName): StrategyFit | undefined {
-	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0);
+	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0 && r.capped !== true);
 	if (runs.length === 0) return undefined;
 	const b = boundsFor(strategy);
 	const xs = runs.map(features);
