@@ -3,13 +3,16 @@
  * (XᵀX + λI)β = Xᵀy; a slope outside its bounds is pinned to the bound and the rest refitted.
  * The bounds carry the physics (e.g. more cache never needs more passes).
  */
-import { lusolve, multiply, transpose, add, identity, matrix, type Matrix } from 'mathjs';
+import { lusolve, multiply, transpose, add, identity, inv, matrix, type Matrix } from 'mathjs';
 
 /** y ≈ β₀ + Σ βⱼ xⱼ; `sd` is the residual standard deviation. */
 export interface LinearFit {
 	coef: number[];
 	sd: number;
 	points: number;
+	/** columns whose slopes were fitted (not pinned), and (XᵀX)⁻¹ over [1, those columns]: the leverage of a new point */
+	free?: number[];
+	inverse?: number[][];
 }
 
 /** [lowest, highest] allowed slope of one column. */
@@ -61,7 +64,27 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	}
 	const resid = y.map((yi, i) => yi - evalLinear({ coef, sd: 0, points: 0 }, xs[i]));
 	const dof = Math.max(1, y.length - 1 - (m - pinned.size));
-	return { coef, sd: Math.sqrt(resid.reduce((a, r) => a + r * r, 0) / dof), points: y.length };
+	const free = Array.from({ length: m }, (_, j) => j).filter((j) => !pinned.has(j));
+	const fit: LinearFit = { coef, sd: Math.sqrt(resid.reduce((a, r) => a + r * r, 0) / dof), points: y.length };
+	if (free.length + 1 <= y.length) {
+		const Xm = matrix(xs.map((r) => [1, ...free.map((j) => r[j])]));
+		fit.free = free;
+		fit.inverse = (inv(add(multiply(transpose(Xm), Xm), multiply(RIDGE, identity(free.length + 1))) as Matrix) as Matrix).toArray() as number[][];
+	}
+	return fit;
+}
+
+/**
+ * Leverage h = x₀ᵀ(XᵀX)⁻¹x₀ of a new point: sd·√h is the standard error of the fitted value there
+ * (the prediction interval of linear regression), which grows as x₀ leaves the calibrated points.
+ * 0 when the fit had no free columns to invert.
+ */
+export function leverage(f: LinearFit, x: number[]): number {
+	if (!f.inverse || !f.free) return 0;
+	const v = [1, ...f.free.map((j) => x[j])];
+	let h = 0;
+	for (let a = 0; a < v.length; a++) for (let b = 0; b < v.length; b++) h += v[a] * f.inverse[a][b] * v[b];
+	return Math.max(0, h);
 }
 
 export function evalLinear(f: LinearFit, x: number[]): number {

@@ -13,6 +13,7 @@ import { binaryBytes, bytesOnDisk, formatBytes, rowsInRamBytes, textBytes, usabl
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
 import { DEFAULT_MAX_EPOCHS } from '../solver/options.js';
+import { leverage, type LinearFit } from './least-squares.js';
 
 export { RUNTIME_BYTES };
 
@@ -110,8 +111,10 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const overlap = overlapShare * Math.min(read, compute);
 	const prepare = ctx.conversion.seconds + read / passesEngine;
 	const wall50 = f.overheadSeconds + ctx.conversion.seconds + read + compute - overlap;
-	const sigmaWall = Math.hypot(f.seedSpread, Math.max(f.passes.sd, f.updatesPerRow.sd), ctx.widening);
-	const sigmaPasses = s === 'memory' ? 0 : Math.hypot(f.passes.sd, ctx.widening);
+	// the residual spread, plus the fitted curve's own standard error at x (regression prediction interval)
+	const sdAt = (g: LinearFit) => g.sd * Math.sqrt(1 + leverage(g, x));
+	const sigmaWall = Math.hypot(f.seedSpread, Math.max(sdAt(f.passes), sdAt(f.updatesPerRow)), ctx.widening);
+	const sigmaPasses = s === 'memory' ? 0 : Math.hypot(sdAt(f.passes), ctx.widening);
 	const passes = passesEngine + ctx.conversion.passes;
 	const wallSeconds = range(wall50, sigmaWall);
 	const price = m.pricePerHour;

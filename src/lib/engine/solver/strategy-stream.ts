@@ -9,7 +9,8 @@
  *   Eviction (SVM): the shrinking test of Hsieh et al. 2008: αᵢ = 0 with G > max PG of the last
  *   sweep, or αᵢ = U with G < min PG; logistic: αᵢ ≤ 10⁻³C on the correct side of the margin.
  *   Evictions happen only while the reader waits for room; when no segment has evicted rows to compact, the oldest segment is
- *   dropped whole (its rows return on the next pass).
+ *   dropped whole (its rows return on the next pass). A budget that holds every row allocates only
+ *   that, never evicts, and hands the reader the unused tails of part-full segments: one pass.
  *   The design follows the reader/trainer split with a cache of informative examples of
  *   Matsushima, Vishwanathan, Smola, "Linear support vector machines via dual cached loops",
  *   KDD 2012, and the selective caching of Chang and Roth, KDD 2011.
@@ -86,8 +87,10 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 	if (budgetWords < 256) {
 		throw new OptionError(`memoryBytes: ${o.memoryBytes} bytes leave too little for a ${S}-segment cache after w, α, the margin log and read buffers (${fixed} bytes)`);
 	}
-	// a budget larger than the whole file allocates only what holds every row
-	const segmentWords = Math.min(budgetWords, Math.ceil(streamCacheBytes(n, h.nnz, real, S) / bytesPerWord / S));
+	// a budget larger than the whole file allocates only what holds every row, and then never evicts
+	const allWords = Math.ceil(streamCacheBytes(n, h.nnz, real, S) / bytesPerWord / S);
+	const holdsAll = budgetWords >= allWords;
+	const segmentWords = Math.min(budgetWords, allWords);
 	const maxRows = Math.floor((S * segmentWords) / (ROW_HEADER_WORDS + 1));
 	const buffers = allocateCache({ segments: S, segmentWords, real }, n);
 	const cache = viewCache(buffers);
@@ -213,16 +216,14 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		table[s * SEG_FIELDS + 1] = dst;
 		table[s * SEG_FIELDS + 2] = dst;
 		table[s * SEG_FIELDS] = SEG_FREE;
-		// the reader finds this segment on its next look; it raises the flag again if that is not enough
-		Atomics.store(control, C_READER_WAITING, 0);
 		unlock(control);
 		Atomics.add(control, C_FREED, 1);
 		Atomics.notify(control, C_FREED);
 	};
 
 	/**
-	 * A reader that waits for room first gets back the unused tails of segments published part-full
-	 * (to feed a hungry trainer): appending there costs no eviction. True when a tail was handed back.
+	 * A cache that holds every row: a reader waiting for room gets back the unused tails of segments
+	 * published part-full (to feed a hungry trainer) instead of evictions. True when a tail was handed back.
 	 */
 	// below the slack streamCacheBytes leaves per segment (4 mean rows), so a cache sized to hold every row does
 	const minTail = 2 * (ROW_HEADER_WORDS + h.nnz / Math.max(1, n));
@@ -239,6 +240,11 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		return returned;
 	};
 
+	const freeSegment = () => {
+		for (let s = 0; s < S; s++) if (table[s * SEG_FIELDS] === SEG_FREE) return true;
+		return false;
+	};
+
 	const reclaim = () => {
 		// wake a reader that idles because every row was already cached
 		if (evictions > 0) {
@@ -246,7 +252,9 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 			Atomics.notify(control, C_EVICTED);
 			evictions = 0;
 		}
-		if (Atomics.load(control, C_READER_WAITING) !== 1 || returnTails()) return;
+		if (Atomics.load(control, C_READER_WAITING) !== 1) return;
+		// with every row fitting, room comes from tails; a free segment the reader has not taken yet is room too
+		if (holdsAll && (returnTails() || freeSegment())) return;
 		let freed = false;
 		for (let s = 0; s < S; s++) {
 			if (table[s * SEG_FIELDS] !== SEG_OWNED) continue;
@@ -345,11 +353,12 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 			pgMaxOld = pgMax <= 0 ? Infinity : pgMax;
 			pgMinOld = pgMin >= 0 ? -Infinity : pgMin;
 		}
-		// evict only when the reader needs room and no free tail can give it: with a cache that holds everything, nothing is re-read
-		const pressure = Atomics.load(control, C_READER_WAITING) === 1 && !returnTails();
+		// evict only when the reader needs room, and never from a cache that holds every row (nothing is re-read then)
+		const pressure = !holdsAll && Atomics.load(control, C_READER_WAITING) === 1;
 		for (let r = R - 1; r >= 0; r--) {
 			if (evict[r] === 1) {
 				evict[r] = 0;
+				if (pressure) removeAt(r);
 			}
 		}
 	};
@@ -422,6 +431,7 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 				const estimate = relativeGap(primalFrom(w, C, lossSumOfMargins(o.loss, margins)), dualFrom(o.loss, C, w, alpha, comp));
 				meter.trace.push({ seconds: meter.seconds(), gap: estimate });
 				o.onProgress?.({ seconds: meter.seconds(), gap: estimate, epochs: visits / n });
+				// a check from the cache (every row resident) costs less than a sweep: no backing off then
 				// a check from the cache (every row resident) costs less than a sweep: no backing off then
 				if (estimate <= o.tol && (estimates >= nextCheckAt || R === n)) {
 					await exactCheck();
