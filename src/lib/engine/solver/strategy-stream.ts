@@ -70,6 +70,8 @@ export interface StreamReport extends TrainReport {
 	readerMBps: number;
 	/** reader throughput while it reads, MB/s: bytes read / its time inside reads (throttle included) */
 	readerBusyMBps: number;
+	/** rows evicted by the projected-gradient test, and rows dropped with the oldest segment when nothing else made room */
+	evicted: { byTest: number; withSegment: number };
 }
 
 export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
@@ -130,6 +132,8 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 	let ageCounter = 0;
 	let R = 0;
 	let evictions = 0;
+	let evictedByTest = 0;
+	let evictedWithSegment = 0;
 	let visits = 0;
 	let pgMaxOld = Infinity;
 	let pgMinOld = -Infinity;
@@ -271,7 +275,10 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		if (oldest < 0) return;
 		let p = oldest * segmentWords;
 		while (p < ingestedTo[oldest]) {
-			if ((idx[p + 2] & FLAG_EVICTED) === 0) removeAt(idx[p + 3]);
+			if ((idx[p + 2] & FLAG_EVICTED) === 0) {
+				removeAt(idx[p + 3]);
+				evictedWithSegment++;
+			}
 			p += ROW_HEADER_WORDS + idx[p + 1];
 		}
 		compact(oldest);
@@ -358,7 +365,10 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		for (let r = R - 1; r >= 0; r--) {
 			if (evict[r] === 1) {
 				evict[r] = 0;
-				if (pressure) removeAt(r);
+				if (pressure) {
+					removeAt(r);
+					evictedByTest++;
+				}
 			}
 		}
 	};
@@ -484,6 +494,7 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 		peakResidentBytes: peakResidentWords * (real ? 8 : 4),
 		readerMBps: trainSeconds > 0 ? stats[0] / 1e6 / trainSeconds : 0,
 		readerBusyMBps: readerMs > 0 ? stats[0] / 1e3 / readerMs : 0,
+		evicted: { byTest: evictedByTest, withSegment: evictedWithSegment },
 		...(o.keepWeights ? { w } : {})
 	};
 }

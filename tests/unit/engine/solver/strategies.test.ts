@@ -73,6 +73,8 @@ describe('the four strategies', () => {
 			expect(reads[i][1]).toBe(reads[i - 1][1] + reads[i - 1][2]);
 		}
 		expect(r.gap).toBeLessThanOrEqual(TOL);
+		// a cache smaller than the data makes room first by the shrinking test (Hsieh et al. 2008), not only by dropping segments
+		expect(r.evicted.byTest).toBeGreaterThan(0);
 	});
 
 	it('stream with a budget that holds every row reads the file once and allocates only what the rows need', async () => {
@@ -84,6 +86,7 @@ describe('the four strategies', () => {
 			expect(r.gap).toBeLessThanOrEqual(TOL);
 			// what reaches the trainer is read once: hit rate = 1 − n/visits
 			expect(r.cacheHitRate).toBeCloseTo(1 - SHAPE.rows / r.updates, 12);
+			expect(r.evicted).toEqual({ byTest: 0, withSegment: 0 });
 		}
 		const huge = (await run('stream', 'hinge', { memoryBytes: 1 << 30 })) as StreamReport;
 		expect(huge.cacheBytes).toBeLessThan(rowsBytes * 1.1);
