@@ -122,7 +122,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		};
 
 		progress('decode', 'measuring decode and parse throughput');
-		const decodeRows = Math.max(MIN_ROWS, Math.min(50_000, Math.round(2e6 / (k * 6 + 8))));
+		// about 16 MB of rows: a smaller file measures the fixed cost of opening and allocating more than the decoding
+		const decodeRows = Math.max(MIN_ROWS, Math.min(200_000, Math.round(16e6 / (k * 6 + 8))));
 		const decode = await measureDecode(await dataFile(decodeRows, seeds[0]), await dataFile(decodeRows, seeds[0], 'svm'));
 
 		// the target machine's ratios
