@@ -221,8 +221,8 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 		missRate: fitLinear(xs, runs.map((r) => Math.log(Math.min(1, Math.max(1e-6, 1 - r.cacheHitRate)))), b.miss),
 		costRatio: Number.isFinite(costRatio) && costRatio > 0 ? costRatio : 1,
 		decodeBps: Number.isFinite(decodeBps) && decodeBps > 0 ? decodeBps : rec.decode.binaryMBps * 1e6,
-		// below 1 where a strategy reads less than the whole file per counted pass (selective's cache, a partial
-		// last pass, the reader's one read ahead): measured 0.2–0.6 for selective, 0.65–1.2 for stream
+		// below 1 where a strategy reads less than the whole file per counted pass (selective's cache, stream's
+		// partial last pass, the reader's one request ahead), above 1 with block files written and read back
 		throttleRatio: Number.isFinite(throttleRatio) ? Math.min(3, Math.max(0.1, throttleRatio)) : 1,
 		overlap: lap.coef[1] / scaleMin,
 		overheadSeconds: Math.max(0, lap.coef[0]) + computeFixed,

@@ -159,8 +159,14 @@ export async function prepareBlocks(
 }
 
 /** Read one block back into RAM (through the throttle). */
-export async function loadBlock(set: BlockSet, b: BlockFile, d: number, throttle: Throttle): Promise<SparseRows> {
-	await throttle.take(b.diskBytes);
+/**
+ * Read a block file through the throttle in `chunkBytes` requests, as a sequential reader of the
+ * emulated disk would: one request for the whole block would let the throttle's one-request
+ * readahead prefetch an entire block during the previous block's compute, hiding reads a real disk
+ * cannot hide.
+ */
+export async function loadBlock(set: BlockSet, b: BlockFile, d: number, throttle: Throttle, chunkBytes: number): Promise<SparseRows> {
+	for (let at = 0; at < b.diskBytes; at += chunkBytes) await throttle.take(Math.min(chunkBytes, b.diskBytes - at));
 	const raw = readFileSync(b.path);
 	const bytes = set.compress ? gunzipSync(raw) : new Uint8Array(raw.buffer, raw.byteOffset, raw.byteLength);
 	return decodeBlock(bytes, d);

@@ -89,7 +89,7 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 		const exactCheck = async () => {
 			const sums = emptySums();
 			for (const b of set.blocks) {
-				const rows = await meter.read(() => loadBlock(set, b, d, throttle));
+				const rows = await meter.read(() => loadBlock(set, b, d, throttle, chunkBytes));
 				meter.hold(state + b.memoryBytes + (set.compress ? b.diskBytes : 0) + (cache ? rowsBytes(cache) : 0));
 				meter.compute(() => {
 					addMargins(sums, rows, w, o.loss);
@@ -109,7 +109,7 @@ export async function trainBlocks(o: ResolvedOptions, selective: boolean): Promi
 			outer++;
 			for (let bi = 0; bi < set.blocks.length; bi++) {
 				const b = set.blocks[bi];
-				const block = await meter.read(() => loadBlock(set, b, d, throttle));
+				const block = await meter.read(() => loadBlock(set, b, d, throttle, chunkBytes));
 				meter.exampleReads += block.n;
 				if (!selective) {
 					meter.hold(state + b.memoryBytes + (set.compress ? b.diskBytes : 0));
