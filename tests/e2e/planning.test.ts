@@ -56,7 +56,11 @@ describe('planning in the browser', () => {
 		await newPlan(projectA.id, 'Nightly berth model', '20000');
 		// the charts are drawn in the browser (LayerChart): wait for their shapes
 		await page.locator('[data-testid="wall-time-chart"] [data-testid="range-bar"]').first().waitFor();
-		await page.locator('[data-testid="what-if-chart"] path').first().waitFor();
+		// a what-if line may be flat (a small plan fits at every RAM size): a flat path has no height, so
+		// wait for it to be drawn rather than visible
+		const line = page.locator('[data-testid="what-if-chart"] path').first();
+		await line.waitFor({ state: 'attached' });
+		expect(await line.getAttribute('d')).toMatch(/^M[\d.]+,[\d.]+L/);
 		expect(await page.getByTestId('caution').innerText()).toContain('pilot run');
 
 		await page.getByLabel('RAM').fill('64');
