@@ -158,9 +158,8 @@ export async function prepareBlocks(
 	};
 }
 
-/** Read one block back into RAM (through the throttle). */
 /**
- * Read a block file through the throttle in `chunkBytes` requests, as a sequential reader of the
+ * Read one block back into RAM, through the throttle in `chunkBytes` requests, as a sequential reader of the
  * emulated disk would: one request for the whole block would let the throttle's one-request
  * readahead prefetch an entire block during the previous block's compute, hiding reads a real disk
  * cannot hide.

@@ -226,13 +226,12 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 	};
 
 	/**
-	 * A cache that holds every row: a reader waiting for room gets back the unused tails of segments
-	 * published part-full (to feed a hungry trainer) instead of evictions. True when a tail was handed back.
+	 * A cache that holds every row: a reader waiting for room (the caller checks) gets back the unused tails of
+	 * segments published part-full (to feed a hungry trainer) instead of evictions. True when a tail was handed back.
 	 */
 	// below the slack streamCacheBytes leaves per segment (4 mean rows), so a cache sized to hold every row does
 	const minTail = 2 * (ROW_HEADER_WORDS + h.nnz / Math.max(1, n));
 	const returnTails = (): boolean => {
-		if (Atomics.load(control, C_READER_WAITING) !== 1) return false;
 		let returned = false;
 		for (let s = 0; s < S; s++) {
 			if (table[s * SEG_FIELDS] !== SEG_OWNED) continue;
@@ -441,7 +440,6 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 				const estimate = relativeGap(primalFrom(w, C, lossSumOfMargins(o.loss, margins)), dualFrom(o.loss, C, w, alpha, comp));
 				meter.trace.push({ seconds: meter.seconds(), gap: estimate });
 				o.onProgress?.({ seconds: meter.seconds(), gap: estimate, epochs: visits / n });
-				// a check from the cache (every row resident) costs less than a sweep: no backing off then
 				// a check from the cache (every row resident) costs less than a sweep: no backing off then
 				if (estimate <= o.tol && (estimates >= nextCheckAt || R === n)) {
 					await exactCheck();
