@@ -440,8 +440,10 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 				const estimate = relativeGap(primalFrom(w, C, lossSumOfMargins(o.loss, margins)), dualFrom(o.loss, C, w, alpha, comp));
 				meter.trace.push({ seconds: meter.seconds(), gap: estimate });
 				o.onProgress?.({ seconds: meter.seconds(), gap: estimate, epochs: visits / n });
-				// a check from the cache (every row resident) costs less than a sweep: no backing off then
-				if (estimate <= o.tol && (estimates >= nextCheckAt || R === n)) {
+				// a check from the cache (every row resident) costs less than a sweep: no backing off then.
+				// Not before the reader's first pass ends: rows not yet delivered were never optimised, and a
+				// check then costs a pass of its own while the reader is still bringing them.
+				if (estimate <= o.tol && passes >= 1 && (estimates >= nextCheckAt || R === n)) {
 					await exactCheck();
 					if (gap <= o.tol) {
 						converged = true;
