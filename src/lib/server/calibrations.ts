@@ -4,9 +4,10 @@
  * plan of the same shape until they are older than MAX_AGE_DAYS.
  */
 import { createHash } from 'node:crypto';
-import { and, desc, eq, gt } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import { db } from './db/index.js';
 import { calibrations } from './db/schema.js';
+import { freshCalibration } from './jobs/store.js';
 import { calibrationDataSchema, calibrationRecordSchema, type CalibrationData, type CalibrationRecord } from '$lib/engine/calibrate/record.js';
 import type { Plan } from '$lib/schemas/plan.js';
 import builtIn from './baseline-calibration.json';
@@ -110,13 +111,7 @@ export async function get(teamId: string, id: string, plan?: Plan): Promise<Reso
  * measured is not what another dataset of the same shape would.
  */
 export async function freshFor(teamId: string, plan: Plan): Promise<ResolvedCalibration | null> {
-	const since = new Date(Date.now() - MAX_AGE_DAYS * 86_400_000);
-	const [row] = await db
-		.select()
-		.from(calibrations)
-		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey(plan)), eq(calibrations.source, 'synthetic'), gt(calibrations.createdAt, since)))
-		.orderBy(desc(calibrations.createdAt))
-		.limit(1);
+	const row = await freshCalibration(db, teamId, shapeKey(plan), MAX_AGE_DAYS);
 	return row ? resolved(row, plan) : null;
 }
 

@@ -21,7 +21,7 @@ export async function get(db: Db, id: string): Promise<CalibrationJob | null> {
 export async function freshCalibration(db: Db, teamId: string, shapeKey: string, maxAgeDays: number, uploadId: string | null = null) {
 	const since = new Date(Date.now() - maxAgeDays * 86_400_000);
 	const rows = await db
-		.select({ id: calibrations.id, createdAt: calibrations.createdAt, source: calibrations.source })
+		.select()
 		.from(calibrations)
 		.where(and(eq(calibrations.teamId, teamId), eq(calibrations.shapeKey, shapeKey), gt(calibrations.createdAt, since), sameData(uploadId)))
 		.orderBy(desc(calibrations.createdAt))
