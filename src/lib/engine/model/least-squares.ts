@@ -24,12 +24,13 @@ const RIDGE = 1e-9;
 /** columns spread less than this are treated as constant (calibration x are logs: 0.05 ≈ 5 %) */
 const MIN_SPREAD = 0.05;
 
+/** XᵀX + λI, the matrix of the normal equations */
+const gram = (Xm: Matrix): Matrix => add(multiply(transpose(Xm), Xm), multiply(RIDGE, identity(Xm.size()[1]))) as Matrix;
+
 function solve(X: number[][], y: number[]): number[] {
 	const Xm = matrix(X);
-	const Xt = transpose(Xm);
-	const A = add(multiply(Xt, Xm), multiply(RIDGE, identity(X[0].length))) as Matrix;
-	const b = multiply(Xt, matrix(y)) as Matrix;
-	const sol = lusolve(A, b) as Matrix;
+	const b = multiply(transpose(Xm), matrix(y)) as Matrix;
+	const sol = lusolve(gram(Xm), b) as Matrix;
 	return (sol.toArray() as number[][]).map((r) => r[0]);
 }
 
@@ -67,9 +68,8 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	const free = Array.from({ length: m }, (_, j) => j).filter((j) => !pinned.has(j));
 	const fit: LinearFit = { coef, sd: Math.sqrt(resid.reduce((a, r) => a + r * r, 0) / dof), points: y.length };
 	if (free.length + 1 <= y.length) {
-		const Xm = matrix(xs.map((r) => [1, ...free.map((j) => r[j])]));
 		fit.free = free;
-		fit.inverse = (inv(add(multiply(transpose(Xm), Xm), multiply(RIDGE, identity(free.length + 1))) as Matrix) as Matrix).toArray() as number[][];
+		fit.inverse = (inv(gram(matrix(xs.map((r) => [1, ...free.map((j) => r[j])])))) as Matrix).toArray() as number[][];
 	}
 	return fit;
 }
