@@ -3,7 +3,9 @@
  * limits, against the estimate made from a calibration alone (the calibration never sees the job's
  * own data or its full row count), and against a naive baseline: bytes ÷ disk speed × a fixed pass count.
  *
- * Run: npx tsx benchmarks/validate.ts [--jobs 1,2,…] [--scale 1] [--calibration-seconds 30] [--out benchmarks/results/validate.md]
+ * Run: npx tsx benchmarks/validate.ts [--jobs 1,2,…] [--scale 1] [--calibration-seconds 30] [--out benchmarks/results/validate.md] [--records DIR]
+ * --records keeps each job's calibration record and real-run reports as JSON in DIR, so a model change can be
+ * re-scored on the same calibrations (benchmarks/rescore.ts) before the suite is run again.
  * --scale multiplies every job's rows (e.g. 0.5 for a reduced suite). Data goes to benchmarks/data/ (git-ignored).
  * Prints and writes a markdown report with machine, date, command, the table and the error summary.
  */
@@ -62,7 +64,8 @@ const { values: flags } = parseArgs({
 		jobs: { type: 'string' },
 		scale: { type: 'string', default: '1' },
 		'calibration-seconds': { type: 'string', default: '30' },
-		out: { type: 'string', default: 'benchmarks/results/validate.md' }
+		out: { type: 'string', default: 'benchmarks/results/validate.md' },
+		records: { type: 'string' }
 	}
 });
 const scale = Number(flags.scale);
@@ -127,6 +130,10 @@ for (const job of jobs) {
 		calSeconds: cal.durationSeconds
 	};
 	rows.push(row);
+	if (flags.records) {
+		mkdirSync(flags.records, { recursive: true });
+		writeFileSync(join(flags.records, `job${job.id}.json`), JSON.stringify({ job, budget, plan: here, calibration: cal, reals: reals.map(({ trace: _, ...r }) => r), baseline: row.baseline }, null, 1));
+	}
 	console.error(
 		`job ${job.id} ${job.strategy}: measured ${row.measured.walls.map((w) => w.toFixed(1)).join(' and ')} s, ${row.measured.passes} passes; predicted ${est.wallSeconds.p50.toFixed(1)} s, ${est.passes.p50.toFixed(1)} passes; baseline ${row.baseline.toFixed(1)} s`
 	);

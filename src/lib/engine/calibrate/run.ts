@@ -102,10 +102,10 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		const ks = [...new Set([Math.max(1, Math.round(k / 2)), Math.round(k), Math.min(features, Math.round(k * 2))])];
 		const dims = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
 		const real = ds.valueKind === 'real';
-		for (const d of dims) for (const kk of ks) kernel.push(measureKernel(kk, d, { real, seconds: 0.04 }));
+		for (const d of dims) for (const kk of ks) kernel.push(measureKernel(kk, d, { real, seconds: 0.04, visit: true }));
 		const kernelFit = fitKernelLines(kernel);
 		// the same step over row sets beyond the CPU caches: rows of a large dataset sit further out in the memory hierarchy
-		for (const rowBytes of [32 << 20, 128 << 20]) kernel.push(measureKernel(k, features, { real, seconds: 0.06, rowBytes }));
+		for (const rowBytes of [32 << 20, 128 << 20]) kernel.push(measureKernel(k, features, { real, seconds: 0.06, rowBytes, visit: true }));
 		const nsCal = kernelNs(kernelFit, k, features);
 
 		const files = new Map<string, string>();
@@ -197,8 +197,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				return run;
 			};
 			// a ladder of doubling row counts at the target's ratios while the next rung fits the share,
-			// keeping room for the extra runs (second seed, second cache fraction, second reader speed)
-			const extras = s === 'memory' ? 1 : s === 'stream' ? 3 : 2;
+			// keeping room for the extra runs: the second seed (and stream's second reader speed) one rung
+			// below the new top, which is the current top, and the second cache fraction on the smallest rung
+			const extrasAtTop = s === 'stream' ? 2 : 1;
 			const ladder: CalibrationRun[] = [];
 			let rows = pilotRows;
 			let growth = 2.5;
@@ -211,7 +212,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 					const spent = elapsed() - started;
 					// growth is per doubling; the last rung may be a partial step up to the plan's rows
 					const nextCost = last * growth ** Math.log2(next / rows);
-					if (next <= rows || spent + nextCost + extras * last > share) break;
+					const extras = extrasAtTop * last + (s === 'memory' ? 0 : ladder[0].wallSeconds);
+					if (next <= rows || spent + nextCost + extras > share) break;
 					rows = next;
 				}
 			} catch (err) {
@@ -221,17 +223,17 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			// extras one rung below the top (cheaper), or at the top when the ladder has one rung
 			const at = ladder.length >= 2 ? ladder[ladder.length - 2] : ladder[0];
 			const seed2 = seeds[1] ?? seeds[0] + 1;
-			const fits = () => elapsed() - started + at.wallSeconds * 1.5 <= share;
+			const fits = (rung: CalibrationRun) => elapsed() - started + rung.wallSeconds * 1.5 <= share;
 			// an extra run at other settings may converge far slower than the rung it copies (block minimization
 			// with twice the blocks): its epochs are capped by the share left, at the rate the rung ran
 			const epochCap = (rung: CalibrationRun) => {
 				const perEpoch = rung.wallSeconds / Math.max(1, rung.epochs);
 				return Math.max(5, Math.min(DEFAULT_MAX_EPOCHS, Math.floor((share - (elapsed() - started)) / Math.max(1e-6, perEpoch))));
 			};
-			if (fits()) await runOne(at.rows, seed2, f1, calReadBps, epochCap(at));
+			if (fits(at)) await runOne(at.rows, seed2, f1, calReadBps, epochCap(at));
 			// the second cache fraction on the smallest rung: its cost is the least predictable
-			if (s !== 'memory' && fits()) await runOne(ladder[0].rows, seeds[0], f2, calReadBps, epochCap(ladder[0]));
-			if (s === 'stream' && fits()) {
+			if (s !== 'memory' && fits(ladder[0])) await runOne(ladder[0].rows, seeds[0], f2, calReadBps, epochCap(ladder[0]));
+			if (s === 'stream' && fits(at)) {
 				// a second trainer-to-reader ratio: a 4× faster reader when the throttle allows, else half speed
 				const faster = calReadBps * 4 < decodeBps * 0.9;
 				await runOne(at.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2, epochCap(at));

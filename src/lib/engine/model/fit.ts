@@ -72,6 +72,15 @@ function boundsFor(strategy: StrategyName): Record<'passes' | 'updates' | 'miss'
 	return { passes: [NONNEG, NONPOS, stream ? [-1, 0] : NONE], updates: [NONNEG, NONPOS, stream ? NONNEG : NONE], miss: [FREE, FREE, stream ? FREE : NONE], epochs: [NONNEG, FREE, stream ? FREE : NONE] };
 }
 
+/**
+ * Weight of a run in the convergence curves: (rows / largest rows)^power. Small runs follow
+ * another regime (a few epochs, start-up effects), and the curves bend between them and the top.
+ * Chosen by benchmarks/backtest.ts --hold 2 on calibration records alone (predicting the top rung
+ * from runs at most a quarter of its rows): power 2 against 0 took the median wall error from
+ * 28 % to 21 % and epochs from 14 % to 10 % (benchmarks/results/backtest.md).
+ */
+const RUNG_WEIGHT_POWER = 2;
+
 /** Epochs to a tolerance grow with log n, so rows enter as ln ln n (a power of log n). */
 export const lnLnRows = (rows: number) => Math.log(Math.log(Math.max(3, rows)));
 
@@ -175,6 +184,9 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	if (runs.length === 0) return undefined;
 	const b = boundsFor(strategy);
 	const xs = runs.map(features);
+	// the curves are read beyond the largest run, so the runs nearest it weigh most: (rows / largest)²
+	const rowsTop = Math.max(...runs.map((r) => r.rows));
+	const weights = runs.map((r) => (r.rows / rowsTop) ** RUNG_WEIGHT_POWER);
 	const k = rec.plan.dataset.nnzPerRow;
 	// runs are taken as they ran: a short reference measurement before them tracks the machine's load worse than
 	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
@@ -190,7 +202,10 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	const free = runs.filter((r) => r.diskMBps === null);
 	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
 	const throttled = runs.filter((r) => r.diskMBps !== null && r.diskMBps * 1e6 < decodeBps);
-	const throttleRatio = throttled.length > 0 ? median(throttled.map((r) => (r.readSeconds * r.diskMBps! * 1e6) / (r.passes * r.bytesOnDisk))) : 1;
+	// taken at the largest throttled rows: small files read in a few requests, whose fixed costs and
+	// overlap with compute do not carry to a plan's size (measured read ratios settle as rows grow)
+	const throttledTop = Math.max(...throttled.map((r) => r.rows));
+	const throttleRatio = throttled.length > 0 ? median(throttled.filter((r) => r.rows === throttledTop).map((r) => (r.readSeconds * r.diskMBps! * 1e6) / (r.passes * r.bytesOnDisk))) : 1;
 	// wall − read − compute = overhead − overlap × min(read, compute); only stream reads while it trains
 	const scaleMin = Math.max(1e-9, ...runs.map((r) => Math.min(r.readSeconds, r.computeSeconds)));
 	const lap = fitLinear(
@@ -215,10 +230,10 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	return {
 		strategy,
 		runs: runs.length,
-		passes: fitLinear(xs, runs.map((r) => Math.log(Math.max(1, r.passes))), b.passes),
-		epochs: fitLinear(xs, runs.map((r) => Math.log(Math.max(1e-3, r.epochs))), b.epochs),
-		updatesPerRow: fitLinear(xs, runs.map((r) => Math.log(r.updates / r.rows)), b.updates),
-		missRate: fitLinear(xs, runs.map((r) => Math.log(Math.min(1, Math.max(1e-6, 1 - r.cacheHitRate)))), b.miss),
+		passes: fitLinear(xs, runs.map((r) => Math.log(Math.max(1, r.passes))), b.passes, weights),
+		epochs: fitLinear(xs, runs.map((r) => Math.log(Math.max(1e-3, r.epochs))), b.epochs, weights),
+		updatesPerRow: fitLinear(xs, runs.map((r) => Math.log(r.updates / r.rows)), b.updates, weights),
+		missRate: fitLinear(xs, runs.map((r) => Math.log(Math.min(1, Math.max(1e-6, 1 - r.cacheHitRate)))), b.miss, weights),
 		costRatio: Number.isFinite(costRatio) && costRatio > 0 ? costRatio : 1,
 		decodeBps: Number.isFinite(decodeBps) && decodeBps > 0 ? decodeBps : rec.decode.binaryMBps * 1e6,
 		// below 1 where a strategy reads less than the whole file per counted pass (selective's cache, stream's

@@ -27,6 +27,9 @@ const MIN_SPREAD = 0.05;
 /** XᵀX + λI, the matrix of the normal equations */
 const gram = (Xm: Matrix): Matrix => add(multiply(transpose(Xm), Xm), multiply(RIDGE, identity(Xm.size()[1]))) as Matrix;
 
+/** rows of the design matrix [1, x…] and y, each scaled by √weight (weighted least squares) */
+const weighted = (X: number[][], sw: number[]) => X.map((r, i) => r.map((v) => v * sw[i]));
+
 function solve(X: number[][], y: number[]): number[] {
 	const Xm = matrix(X);
 	const b = multiply(transpose(Xm), matrix(y)) as Matrix;
@@ -34,18 +37,23 @@ function solve(X: number[][], y: number[]): number[] {
 	return (sol.toArray() as number[][]).map((r) => r[0]);
 }
 
-const mean = (y: number[]) => y.reduce((a, b) => a + b, 0) / y.length;
+const weightedMean = (y: number[], w: number[]) => y.reduce((a, v, i) => a + v * w[i], 0) / w.reduce((a, v) => a + v, 0);
 
 /**
  * Fit y on columns xs (one row per point). A column with no spread gets slope 0 (or its
  * bound when 0 is outside), so a ratio calibrated at a single value contributes no slope.
- * Columns are expected in log units (see MIN_SPREAD).
+ * Columns are expected in log units (see MIN_SPREAD). `weights` (default all 1) make a
+ * weighted fit; they are scaled to a mean of 1, so `sd` and the leverage keep their meaning
+ * for a point of average weight.
  */
-export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = []): LinearFit {
+export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [], weights?: number[]): LinearFit {
 	const m = xs[0]?.length ?? 0;
 	const b = (j: number) => bounds[j] ?? FREE;
 	const coef = new Array(m + 1).fill(0);
 	if (y.length === 0) return { coef, sd: 0, points: 0 };
+	const meanWeight = weights ? weights.reduce((a, v) => a + v, 0) / weights.length : 1;
+	const w = y.map((_, i) => (weights ? weights[i] / meanWeight : 1));
+	const sw = w.map(Math.sqrt);
 	const pinned = new Map<number, number>();
 	for (let j = 0; j < m; j++) {
 		const col = xs.map((r) => r[j]);
@@ -54,7 +62,16 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	for (let round = 0; round <= m; round++) {
 		const free = Array.from({ length: m }, (_, j) => j).filter((j) => !pinned.has(j));
 		const yAdj = y.map((yi, i) => yi - [...pinned].reduce((s, [j, v]) => s + v * xs[i][j], 0));
-		const beta = free.length + 1 <= y.length ? solve(xs.map((r) => [1, ...free.map((j) => r[j])]), yAdj) : [mean(yAdj), ...free.map(() => 0)];
+		const beta =
+			free.length + 1 <= y.length
+				? solve(
+						weighted(
+							xs.map((r) => [1, ...free.map((j) => r[j])]),
+							sw
+						),
+						yAdj.map((v, i) => v * sw[i])
+					)
+				: [weightedMean(yAdj, w), ...free.map(() => 0)];
 		coef.fill(0);
 		coef[0] = beta[0];
 		free.forEach((j, i) => (coef[j + 1] = beta[i + 1]));
@@ -66,10 +83,10 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	const resid = y.map((yi, i) => yi - evalLinear({ coef, sd: 0, points: 0 }, xs[i]));
 	const dof = Math.max(1, y.length - 1 - (m - pinned.size));
 	const free = Array.from({ length: m }, (_, j) => j).filter((j) => !pinned.has(j));
-	const fit: LinearFit = { coef, sd: Math.sqrt(resid.reduce((a, r) => a + r * r, 0) / dof), points: y.length };
+	const fit: LinearFit = { coef, sd: Math.sqrt(resid.reduce((a, r, i) => a + w[i] * r * r, 0) / dof), points: y.length };
 	if (free.length + 1 <= y.length) {
 		fit.free = free;
-		fit.inverse = (inv(gram(matrix(xs.map((r) => [1, ...free.map((j) => r[j])])))) as Matrix).toArray() as number[][];
+		fit.inverse = (inv(gram(matrix(weighted(xs.map((r) => [1, ...free.map((j) => r[j])]), sw)))) as Matrix).toArray() as number[][];
 	}
 	return fit;
 }

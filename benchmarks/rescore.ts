@@ -1,0 +1,46 @@
+/**
+ * Re-score the capacity model on the calibrations and real runs a validation kept with --records,
+ * without running anything again: for a change to model/fit.ts or model/predict.ts (not to the
+ * calibration or the engine, which need a fresh `validate.ts`). Prints one line per job and the summary.
+ *
+ * Run: npx tsx benchmarks/rescore.ts DIR
+ */
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { calibrationRecordSchema } from '../src/lib/engine/calibrate/record.js';
+import { planSchema } from '../src/lib/schemas/plan.js';
+import { predict } from '../src/lib/engine/model/predict.js';
+
+const dir = process.argv[2];
+if (!dir) {
+	console.error('usage: npx tsx benchmarks/rescore.ts DIR (a folder written by validate.ts --records)');
+	process.exit(2);
+}
+const files = readdirSync(dir)
+	.filter((f) => /^job\d+\.json$/.test(f))
+	.sort((a, b) => Number(a.replace(/\D/g, '')) - Number(b.replace(/\D/g, '')));
+const median = (xs: number[]) => {
+	const s = [...xs].sort((a, b) => a - b);
+	const m = s.length >> 1;
+	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+};
+const errs: number[] = [];
+const f1 = (x: number) => x.toFixed(1);
+console.log('job strategy      wall meas/pred      error  passes meas/pred  epochs meas/pred  read meas/pred  compute meas/pred');
+for (const f of files) {
+	const saved = JSON.parse(readFileSync(join(dir, f), 'utf8'));
+	const cal = calibrationRecordSchema.parse(saved.calibration);
+	const plan = planSchema.parse(saved.plan);
+	const est = predict(plan, cal, { memoryBytes: saved.budget ?? undefined }).strategies.find((e) => e.strategy === saved.job.strategy);
+	if (!est) continue;
+	const reals: { wallSeconds: number; passes: number; epochs: number; readSeconds: number; computeSeconds: number }[] = saved.reals;
+	const mean = (g: (r: (typeof reals)[number]) => number) => reals.reduce((a, r) => a + g(r), 0) / reals.length;
+	const wall = mean((r) => r.wallSeconds);
+	const err = Math.abs(est.wallSeconds.p50 - wall) / wall;
+	errs.push(err);
+	const read = est.breakdown.prepare + est.breakdown.read;
+	console.log(
+		`${String(saved.job.id).padStart(3)} ${saved.job.strategy.padEnd(10)} ${f1(wall).padStart(7)} / ${f1(est.wallSeconds.p50).padEnd(7)} ${(err * 100).toFixed(0).padStart(4)} %  ${f1(mean((r) => r.passes)).padStart(6)} / ${f1(est.passes.p50).padEnd(7)} ${f1(mean((r) => r.epochs)).padStart(6)} / ${f1(est.epochs).padEnd(7)} ${f1(mean((r) => r.readSeconds)).padStart(5)} / ${f1(read).padEnd(6)} ${f1(mean((r) => r.computeSeconds)).padStart(6)} / ${f1(est.breakdown.compute)}`
+	);
+}
+console.log(`median ${(median(errs) * 100).toFixed(0)} %, worst ${(Math.max(...errs) * 100).toFixed(0)} % over ${errs.length} jobs`);
