@@ -25,6 +25,7 @@ const median = (xs: number[]) => {
 	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 };
 const errs: number[] = [];
+let inside = 0;
 const f1 = (x: number) => x.toFixed(1);
 console.log('job strategy      wall meas/pred      error  passes meas/pred  epochs meas/pred  read meas/pred  compute meas/pred');
 for (const f of files) {
@@ -38,9 +39,10 @@ for (const f of files) {
 	const wall = mean((r) => r.wallSeconds);
 	const err = Math.abs(est.wallSeconds.p50 - wall) / wall;
 	errs.push(err);
+	if (wall >= est.wallSeconds.p10 && wall <= est.wallSeconds.p90) inside++;
 	const read = est.breakdown.prepare + est.breakdown.read;
 	console.log(
 		`${String(saved.job.id).padStart(3)} ${saved.job.strategy.padEnd(10)} ${f1(wall).padStart(7)} / ${f1(est.wallSeconds.p50).padEnd(7)} ${(err * 100).toFixed(0).padStart(4)} %  ${f1(mean((r) => r.passes)).padStart(6)} / ${f1(est.passes.p50).padEnd(7)} ${f1(mean((r) => r.epochs)).padStart(6)} / ${f1(est.epochs).padEnd(7)} ${f1(mean((r) => r.readSeconds)).padStart(5)} / ${f1(read).padEnd(6)} ${f1(mean((r) => r.computeSeconds)).padStart(6)} / ${f1(est.breakdown.compute)}`
 	);
 }
-console.log(`median ${(median(errs) * 100).toFixed(0)} %, worst ${(Math.max(...errs) * 100).toFixed(0)} % over ${errs.length} jobs`);
+console.log(`median ${(median(errs) * 100).toFixed(0)} %, worst ${(Math.max(...errs) * 100).toFixed(0)} % over ${errs.length} jobs; measured wall inside p10–p90 for ${inside}`);

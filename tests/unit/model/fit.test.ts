@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { evalLinear, features, fitModel } from '../../../src/lib/engine/model/fit.js';
 import { fitLinear } from '../../../src/lib/engine/model/least-squares.js';
+import { predict } from '../../../src/lib/engine/model/predict.js';
+import { aPlan } from './plan-factory.js';
 import { aRecord } from './record-factory.js';
 
 describe('fitModel', () => {
@@ -32,5 +34,23 @@ describe('fitModel', () => {
 			return Math.exp(evalLinear(f, at));
 		};
 		expect(Math.abs(unweighted(stray.runs) / unweighted(rec.runs) - 1)).toBeGreaterThan(0.15);
+	});
+
+	it('widens the range by how much the machine speed moved during the calibration', () => {
+		const steady = aRecord();
+		// the reference kernel before the block runs read 25 % slower: other work shared the machine then
+		const busy = { ...steady, runs: steady.runs.map((r) => (r.strategy === 'block' ? { ...r, referenceNs: 500 } : r)) };
+		expect(fitModel(steady).loadSpread).toBe(0);
+		// sd of ln over {400 (the median), 400, 500}
+		const l = [400, 400, 500].map(Math.log);
+		const m = (l[0] + l[1] + l[2]) / 3;
+		expect(fitModel(busy).loadSpread).toBeCloseTo(Math.sqrt(l.reduce((a, x) => a + (x - m) ** 2, 0) / 2), 9);
+		const plan = aPlan();
+		const spread = (rec: typeof steady) => {
+			const w = predict(plan, rec).strategies[0].wallSeconds;
+			return w.p90 / w.p10;
+		};
+		expect(spread(busy)).toBeGreaterThan(spread(steady));
+		expect(predict(plan, busy).strategies[0].wallSeconds.p50).toBeCloseTo(predict(plan, steady).strategies[0].wallSeconds.p50, 9);
 	});
 });

@@ -50,6 +50,8 @@ export interface FootprintPoint {
 
 export interface FittedModel {
 	record: CalibrationRecord;
+	/** sd of ln(reference kernel ns) over the calibration: how much the machine's speed moved under other load while it ran */
+	loadSpread: number;
 	/** per-update cost lines from the default (2–4 MiB) row sets */
 	kernel: KernelLine[];
 	footprint: FootprintPoint[];
@@ -248,6 +250,18 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	};
 }
 
+/**
+ * The spread of the reference kernel measured before each strategy's runs (and its median over the
+ * calibration): a machine shared with other work runs the same code faster or slower from one
+ * minute to the next, and a plan's real run meets the machine at another minute than its calibration.
+ */
+function loadSpread(rec: CalibrationRecord): number {
+	const refs = [rec.machine.referenceNs, ...new Set(rec.runs.map((r) => r.referenceNs))].map(Math.log);
+	if (refs.length < 2) return 0;
+	const m = refs.reduce((a, x) => a + x, 0) / refs.length;
+	return Math.sqrt(refs.reduce((a, x) => a + (x - m) ** 2, 0) / (refs.length - 1));
+}
+
 const cache = new WeakMap<CalibrationRecord, FittedModel>();
 
 /** Fit (once per record object; later calls return the cached fit). */
@@ -262,7 +276,7 @@ export function fitModel(rec: CalibrationRecord): FittedModel {
 		const f = fitStrategy(rec, kernel, footprint, s);
 		if (f) strategies[s] = f;
 	}
-	const model = { record: rec, kernel, footprint, strategies };
+	const model = { record: rec, loadSpread: loadSpread(rec), kernel, footprint, strategies };
 	cache.set(rec, model);
 	return model;
 }

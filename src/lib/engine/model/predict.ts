@@ -113,7 +113,7 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const wall50 = f.overheadSeconds + ctx.conversion.seconds + read + compute - overlap;
 	// the residual spread, plus the fitted curve's own standard error at x (regression prediction interval)
 	const sdAt = (g: LinearFit) => g.sd * Math.sqrt(1 + leverage(g, x));
-	const sigmaWall = Math.hypot(f.seedSpread, Math.max(sdAt(f.passes), sdAt(f.updatesPerRow)), ctx.widening);
+	const sigmaWall = Math.hypot(f.seedSpread, Math.max(sdAt(f.passes), sdAt(f.updatesPerRow)), ctx.widening, ctx.model.loadSpread);
 	const sigmaPasses = s === 'memory' ? 0 : Math.hypot(sdAt(f.passes), ctx.widening);
 	const passes = passesEngine + ctx.conversion.passes;
 	const wallSeconds = range(wall50, sigmaWall);
