@@ -8,7 +8,8 @@
 import type { CalibrationRecord, CalibrationRun, KernelPoint } from '../calibrate/record.js';
 import type { StrategyName } from '../types.js';
 import { fitLinear, evalLinear, FREE, type LinearFit, type SlopeBounds } from './least-squares.js';
-import { rowsInRamBytes } from './sizes.js';
+import { cachedRowsBytes } from './sizes.js';
+import { stateBytes } from '../solver/meter.js';
 
 /** ns per update = a + b·k at one feature dimension. */
 export interface KernelLine {
@@ -147,6 +148,18 @@ export function extraNsForRows(curve: FootprintPoint[], bytes: number): number {
 	return curve[curve.length - 1].ns - curve[0].ns;
 }
 
+/**
+ * Bytes the trainer cycles over, which set its memory stalls: the rows it holds (every row for
+ * memory; a block, a block and a cache, or the stream cache for the others) and the per-example
+ * arrays it reads at random beside them (α, C − α, the margin log). Once a machine has 1 GiB or
+ * more, a budget short of every row puts this past the largest kernel point (128 MiB), so more RAM
+ * never adds stalls; below that the emulated caches of calibration and validation runs live.
+ */
+export function trainerRowBytes(strategy: StrategyName, rows: number, cacheFraction: number, k: number, valueKind: 'binary' | 'real', logistic: boolean): number {
+	const held = (strategy === 'memory' ? 1 : Math.min(1, cacheFraction)) * cachedRowsBytes(strategy, rows, k, valueKind);
+	return held + stateBytes(rows, 0, logistic, strategy !== 'memory');
+}
+
 /** Kernel ns per update at (k, d), interpolated in ln d and held flat outside the measured range. */
 export function kernelNs(kernel: KernelLine[], k: number, d: number): number {
 	const lnD = Math.log(d);
@@ -195,7 +208,7 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
 	const computeModel = runs.map((r) => r.updates * tKernel);
 	// the rows' own memory stalls at each run's size come off before the ratio is fitted
-	const stalls = runs.map((r) => r.updates * extraNsForRows(footprint, rowsInRamBytes(r.rows, k, rec.plan.dataset.valueKind)) * 1e-9);
+	const stalls = runs.map((r) => r.updates * extraNsForRows(footprint, trainerRowBytes(strategy, r.rows, r.cacheFraction, k, rec.plan.dataset.valueKind, rec.plan.training.loss === 'logistic')) * 1e-9);
 	const { ratio: costRatio, fixed: computeFixed } = fitCost(
 		computeModel,
 		runs.map((r, i) => Math.max(r.computeSeconds * 0.1, r.computeSeconds - stalls[i]))

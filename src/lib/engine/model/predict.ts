@@ -8,8 +8,8 @@
 import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
 import type { CalibrationRecord } from '../calibrate/record.js';
-import { extraNsForRows, fitModel, kernelNs, evalLinear, lnLnRows, type FittedModel, type StrategyFit } from './fit.js';
-import { binaryBytes, bytesOnDisk, formatBytes, rowsInRamBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
+import { extraNsForRows, fitModel, kernelNs, evalLinear, lnLnRows, trainerRowBytes, type FittedModel, type StrategyFit } from './fit.js';
+import { binaryBytes, bytesOnDisk, formatBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
 import { DEFAULT_MAX_EPOCHS } from '../solver/options.js';
@@ -52,8 +52,8 @@ interface Context {
 	usable: number;
 	memoryBytes: number | undefined;
 	tUpdate: number;
-	/** extra seconds per update for rows of the dataset's size in RAM (memory stalls), at the target's core speed */
-	tStall: number;
+	/** seconds per ns of kernel time on the target (its core speed) */
+	nsScale: number;
 	widening: number;
 	conversion: { seconds: number; passes: number };
 }
@@ -106,7 +106,9 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const updates = rows * Math.exp(evalLinear(f.updatesPerRow, x)) * cut;
 	const hit = s === 'memory' ? 1 - Math.min(1, rows / Math.max(updates, rows)) : 1 - Math.min(1, Math.exp(evalLinear(f.missRate, x)));
 	const read = passesEngine * ctx.binBytes * perByte;
-	const compute = updates * (ctx.tUpdate * f.costRatio + ctx.tStall);
+	// memory stalls of the rows the trainer cycles over (all of them, or what the budget holds)
+	const tStall = extraNsForRows(ctx.model.footprint, trainerRowBytes(s, rows, cacheFraction, plan.dataset.nnzPerRow, plan.dataset.valueKind, plan.training.loss === 'logistic')) * ctx.nsScale;
+	const compute = updates * (ctx.tUpdate * f.costRatio + tStall);
 	const overlapShare = m.cores >= 2 ? f.overlap : 0;
 	const overlap = overlapShare * Math.min(read, compute);
 	const prepare = ctx.conversion.seconds + read / passesEngine;
@@ -202,8 +204,7 @@ export function predict(plan: Plan, calibration: CalibrationRecord | FittedModel
 		memoryBytes: opts.memoryBytes,
 		// per update on the target: the kernel at (k, d) at the target's core speed
 		tUpdate: kernelNs(model.kernel, ds.nnzPerRow, Math.min(ds.features, rec.features)) * 1e-9 * cpuScale,
-		// all rows count, also for the out-of-core strategies: conservative, and more RAM then never costs time
-		tStall: extraNsForRows(model.footprint, rowsInRamBytes(rows, ds.nnzPerRow, ds.valueKind)) * 1e-9 * cpuScale,
+		nsScale: 1e-9 * cpuScale,
 		widening,
 		conversion: conversion(plan, rec, rows, cpuScale, binBytes)
 	};
