@@ -442,8 +442,10 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 				o.onProgress?.({ seconds: meter.seconds(), gap: estimate, epochs: visits / n });
 				// a check from the cache (every row resident) costs less than a sweep: no backing off then.
 				// Not before the reader's first pass ends: rows not yet delivered were never optimised, and a
-				// check then costs a pass of its own while the reader is still bringing them.
-				if (estimate <= o.tol && passes >= 1 && (estimates >= nextCheckAt || R === n)) {
+				// check then costs a pass of its own while the reader is still bringing them. A cache that holds
+				// every row waits for the last published rows to be taken in (the reader counts its pass just
+				// after publishing them), so its check always reads the cache.
+				if (estimate <= o.tol && passes >= 1 && (!holdsAll || R === n) && (estimates >= nextCheckAt || R === n)) {
 					await exactCheck();
 					if (gap <= o.tol) {
 						converged = true;
