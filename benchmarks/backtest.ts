@@ -21,6 +21,11 @@ if (paths.length === 0) {
 	process.exit(2);
 }
 const files = paths.flatMap((p) => (statSync(p).isDirectory() ? readdirSync(p).filter((f) => f.endsWith('.json')).map((f) => join(p, f)) : [p]));
+// a reader that stops early (| head) is not an error
+process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+	if (e.code === 'EPIPE') process.exit(0);
+	throw e;
+});
 const median = (xs: number[]) => {
 	const s = [...xs].sort((a, b) => a - b);
 	const m = s.length >> 1;

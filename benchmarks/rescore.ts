@@ -21,6 +21,11 @@ if (!dir) {
 const files = readdirSync(dir)
 	.filter((f) => /^job\d+\.json$/.test(f))
 	.sort((a, b) => Number(a.replace(/\D/g, '')) - Number(b.replace(/\D/g, '')));
+// a reader that stops early (| head) is not an error
+process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+	if (e.code === 'EPIPE') process.exit(0);
+	throw e;
+});
 const median = (xs: number[]) => {
 	const s = [...xs].sort((a, b) => a - b);
 	const m = s.length >> 1;
