@@ -11,6 +11,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { calibrationRecordSchema, type CalibrationRecord } from '../src/lib/engine/calibrate/record.js';
 import { predict } from '../src/lib/engine/model/predict.js';
+import { median, endQuietlyOnClosedPipe } from './report.js';
 
 const args = process.argv.slice(2);
 const holdAt = args.indexOf('--hold');
@@ -21,16 +22,7 @@ if (paths.length === 0) {
 	process.exit(2);
 }
 const files = paths.flatMap((p) => (statSync(p).isDirectory() ? readdirSync(p).filter((f) => f.endsWith('.json')).map((f) => join(p, f)) : [p]));
-// a reader that stops early (| head) is not an error
-process.stdout.on('error', (e: NodeJS.ErrnoException) => {
-	if (e.code === 'EPIPE') process.exit(0);
-	throw e;
-});
-const median = (xs: number[]) => {
-	const s = [...xs].sort((a, b) => a - b);
-	const m = s.length >> 1;
-	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-};
+endQuietlyOnClosedPipe();
 const ratio = (pred: number, meas: number) => Math.log(pred / meas);
 const errs: Record<string, number[]> = { wall: [], compute: [], epochs: [], passes: [] };
 for (const file of files.sort()) {

@@ -11,6 +11,7 @@ import { join } from 'node:path';
 import { calibrationRecordSchema } from '../src/lib/engine/calibrate/record.js';
 import { planSchema } from '../src/lib/schemas/plan.js';
 import { predict } from '../src/lib/engine/model/predict.js';
+import { median, endQuietlyOnClosedPipe } from './report.js';
 
 const dir = process.argv[2];
 const markdown = process.argv.includes('--markdown');
@@ -21,16 +22,7 @@ if (!dir) {
 const files = readdirSync(dir)
 	.filter((f) => /^job\d+\.json$/.test(f))
 	.sort((a, b) => Number(a.replace(/\D/g, '')) - Number(b.replace(/\D/g, '')));
-// a reader that stops early (| head) is not an error
-process.stdout.on('error', (e: NodeJS.ErrnoException) => {
-	if (e.code === 'EPIPE') process.exit(0);
-	throw e;
-});
-const median = (xs: number[]) => {
-	const s = [...xs].sort((a, b) => a - b);
-	const m = s.length >> 1;
-	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-};
+endQuietlyOnClosedPipe();
 const errs: number[] = [];
 let inside = 0;
 const f1 = (x: number) => x.toFixed(1);

@@ -22,6 +22,7 @@ import { measureCoreSpeed } from '../src/lib/engine/calibrate/kernel.js';
 import { predict } from '../src/lib/engine/model/predict.js';
 import { binaryBytes, rowsInRamBytes } from '../src/lib/engine/model/sizes.js';
 import { budgetForRows } from '../src/lib/engine/model/sizes.js';
+import { median } from './report.js';
 
 /** the baseline's fixed pass count, chosen before any job ran (common practice, no source) */
 const BASELINE_PASSES = 10;
@@ -76,11 +77,6 @@ const dataDir = 'benchmarks/data/validate';
 mkdirSync(dataDir, { recursive: true });
 
 const rel = (pred: number, meas: number) => Math.abs(pred - meas) / meas;
-const median = (xs: number[]) => {
-	const s = [...xs].sort((a, b) => a - b);
-	const m = s.length >> 1;
-	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-};
 
 interface Row {
 	job: Job;

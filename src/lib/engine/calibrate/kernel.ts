@@ -4,7 +4,7 @@
  * sits where a real run puts it in the memory hierarchy.
  */
 import { Random } from '../data/random.js';
-import { axpy, dot } from '../solver/sparse.js';
+import { axpy, dot, squaredNorm } from '../solver/sparse.js';
 import type { KernelPoint } from './record.js';
 
 /** nonzeros in the default measured row set (2–4 MiB of rows, about what a calibration run holds) */
@@ -67,11 +67,7 @@ function visitSweep(rows: number, k: number, indices: Uint32Array, values: Float
 	const labels = new Int8Array(rows).map(() => (rng.next() < 0.5 ? 1 : -1));
 	const alpha = new Float64Array(rows);
 	const qd = new Float64Array(rows);
-	for (let i = 0; i < rows; i++) {
-		let q = 0;
-		for (let j = i * k; j < i * k + k; j++) q += values === null ? 1 : values[j] * values[j];
-		qd[i] = q > 0 ? q : 1;
-	}
+	for (let i = 0; i < rows; i++) qd[i] = squaredNorm(values, i * k, i * k + k) || 1;
 	return () => {
 		for (let s = 0; s < rows; s++) {
 			const j = s + Math.floor(rng.next() * (rows - s));

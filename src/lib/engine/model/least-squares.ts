@@ -54,6 +54,8 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	const meanWeight = weights ? weights.reduce((a, v) => a + v, 0) / weights.length : 1;
 	const w = y.map((_, i) => (weights ? weights[i] / meanWeight : 1));
 	const sw = w.map(Math.sqrt);
+	/** the weighted design matrix [1, x…] over the free columns */
+	const design = (free: number[]) => weighted(xs.map((r) => [1, ...free.map((j) => r[j])]), sw);
 	const pinned = new Map<number, number>();
 	for (let j = 0; j < m; j++) {
 		const col = xs.map((r) => r[j]);
@@ -62,16 +64,7 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	for (let round = 0; round <= m; round++) {
 		const free = Array.from({ length: m }, (_, j) => j).filter((j) => !pinned.has(j));
 		const yAdj = y.map((yi, i) => yi - [...pinned].reduce((s, [j, v]) => s + v * xs[i][j], 0));
-		const beta =
-			free.length + 1 <= y.length
-				? solve(
-						weighted(
-							xs.map((r) => [1, ...free.map((j) => r[j])]),
-							sw
-						),
-						yAdj.map((v, i) => v * sw[i])
-					)
-				: [weightedMean(yAdj, w), ...free.map(() => 0)];
+		const beta = free.length + 1 <= y.length ? solve(design(free), yAdj.map((v, i) => v * sw[i])) : [weightedMean(yAdj, w), ...free.map(() => 0)];
 		coef.fill(0);
 		coef[0] = beta[0];
 		free.forEach((j, i) => (coef[j + 1] = beta[i + 1]));
@@ -86,7 +79,7 @@ export function fitLinear(xs: number[][], y: number[], bounds: SlopeBounds[] = [
 	const fit: LinearFit = { coef, sd: Math.sqrt(resid.reduce((a, r, i) => a + w[i] * r * r, 0) / dof), points: y.length };
 	if (free.length + 1 <= y.length) {
 		fit.free = free;
-		fit.inverse = (inv(gram(matrix(weighted(xs.map((r) => [1, ...free.map((j) => r[j])]), sw)))) as Matrix).toArray() as number[][];
+		fit.inverse = (inv(gram(matrix(design(free)))) as Matrix).toArray() as number[][];
 	}
 	return fit;
 }

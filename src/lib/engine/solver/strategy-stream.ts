@@ -445,7 +445,7 @@ export async function trainStream(o: ResolvedOptions): Promise<StreamReport> {
 				// check then costs a pass of its own while the reader is still bringing them. A cache that holds
 				// every row waits for the last published rows to be taken in (the reader counts its pass just
 				// after publishing them), so its check always reads the cache.
-				if (estimate <= o.tol && passes >= 1 && (!holdsAll || R === n) && (estimates >= nextCheckAt || R === n)) {
+				if (estimate <= o.tol && passes >= 1 && (R === n || (!holdsAll && estimates >= nextCheckAt))) {
 					await exactCheck();
 					if (gap <= o.tol) {
 						converged = true;
