@@ -3,17 +3,19 @@
  * limits, against the estimate made from a calibration alone (the calibration never sees the job's
  * own data or its full row count), and against a naive baseline: bytes ÷ disk speed × a fixed pass count.
  *
- * Run: npx tsx benchmarks/validate.ts [--jobs 1,2,…] [--scale 1] [--calibration-seconds 30] [--out benchmarks/results/validate.md] [--records DIR]
+ * Run: npx tsx benchmarks/validate.ts [--jobs 1,2,…] [--scale 1] [--calibration-seconds 30] [--out benchmarks/results/validate.md] [--records DIR] [--reals-from DIR]
  * --records keeps each job's calibration record and real-run reports as JSON in DIR, so a model change can be
  * re-scored on the same calibrations (benchmarks/rescore.ts) before the suite is run again.
+ * --reals-from takes the real runs from such a folder instead of running them again: for a change to the
+ * calibration alone, which needs fresh calibrations but leaves the engine's real runs as they were.
  * --scale multiplies every job's rows (e.g. 0.5 for a reduced suite). Data goes to benchmarks/data/ (git-ignored).
  * Prints and writes a markdown report with machine, date, command, the table and the error summary.
  */
-import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
-import type { Loss, StrategyName, ValueKind } from '../src/lib/engine/types.js';
+import type { Loss, StrategyName, TrainReport, ValueKind } from '../src/lib/engine/types.js';
 import type { Plan } from '../src/lib/schemas/plan.js';
 import { generateToFile, GENERATE_DEFAULTS } from '../src/lib/engine/data/generate.js';
 import { train } from '../src/lib/engine/solver/train.js';
@@ -66,7 +68,8 @@ const { values: flags } = parseArgs({
 		scale: { type: 'string', default: '1' },
 		'calibration-seconds': { type: 'string', default: '30' },
 		out: { type: 'string', default: 'benchmarks/results/validate.md' },
-		records: { type: 'string' }
+		records: { type: 'string' },
+		'reals-from': { type: 'string' }
 	}
 });
 const scale = Number(flags.scale);
@@ -85,6 +88,23 @@ interface Row {
 	predicted: { p10: number; p50: number; p90: number; passes: number; hit: number; epochs: number; compute: number; read: number };
 	baseline: number;
 	calSeconds: number;
+}
+
+/** two real runs (solver seeds 1 and 2): their mean is the measured figure, their difference the noise floor */
+async function realRuns(job: Job, budget: number | null): Promise<TrainReport[]> {
+	const data = join(dataDir, `job${job.id}-${job.rows}.bin`);
+	if (!existsSync(data))
+		await generateToFile({ rows: job.rows, features: job.features, nnz: job.k, positive: job.p, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: job.values, seed: 1 }, data, 'bin');
+	const reals: TrainReport[] = [];
+	for (const seed of [1, 2]) reals.push(await train({ data, loss: job.loss, C: job.C, tol: 0.01, strategy: job.strategy, seed, memoryBytes: budget ?? undefined, diskMBps: job.diskMBps }));
+	return reals;
+}
+
+/** the real runs a validation kept with --records for the same job (traces were not kept) */
+function keptReals(dir: string, job: Job): TrainReport[] {
+	const saved = JSON.parse(readFileSync(join(dir, `job${job.id}.json`), 'utf8'));
+	if (saved.job.rows !== job.rows) throw new Error(`${dir}/job${job.id}.json ran ${saved.job.rows} rows, this suite ${job.rows}`);
+	return saved.reals.map((r: Omit<TrainReport, 'trace'>) => ({ ...r, trace: [] }));
 }
 
 const rows: Row[] = [];
@@ -108,12 +128,7 @@ for (const job of jobs) {
 		console.error(`job ${job.id} ${job.strategy}: not calibrated (${cal.notes.join('; ')})`);
 		continue;
 	}
-	const data = join(dataDir, `job${job.id}-${job.rows}.bin`);
-	if (!existsSync(data))
-		await generateToFile({ rows: job.rows, features: job.features, nnz: job.k, positive: job.p, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: job.values, seed: 1 }, data, 'bin');
-	// two real runs (solver seeds 1 and 2): their mean is the measured figure, their difference the noise floor
-	const reals = [];
-	for (const seed of [1, 2]) reals.push(await train({ data, loss: job.loss, C: job.C, tol: 0.01, strategy: job.strategy, seed, memoryBytes: budget ?? undefined, diskMBps: job.diskMBps }));
+	const reals = flags['reals-from'] ? keptReals(flags['reals-from'], job) : await realRuns(job, budget);
 	const mean = (f: (r: (typeof reals)[number]) => number) => reals.reduce((a, r) => a + f(r), 0) / reals.length;
 	const real = reals[0];
 	const bytes = binaryBytes(job.rows, job.k, job.values);

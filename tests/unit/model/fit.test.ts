@@ -53,4 +53,22 @@ describe('fitModel', () => {
 		expect(spread(busy)).toBeGreaterThan(spread(steady));
 		expect(predict(plan, busy).strategies[0].wallSeconds.p50).toBeCloseTo(predict(plan, steady).strategies[0].wallSeconds.p50, 9);
 	});
+
+	it('carries compute measured on a smaller weight vector to the plan through the kernel line at each dimension', () => {
+		const rec = aRecord();
+		const small = rec.features / 100;
+		// runs on data with a hundredth of the features, whose kernel costs half as much per update there
+		const narrow = {
+			...rec,
+			kernel: [...rec.kernel, ...rec.kernel.map((p) => ({ ...p, features: small, nsPerUpdate: p.nsPerUpdate / 2 }))],
+			runs: rec.runs.map((r) => ({ ...r, features: small, computeSeconds: r.computeSeconds / 2, wallSeconds: r.wallSeconds - r.computeSeconds / 2 }))
+		};
+		const plan = aPlan();
+		const wide = predict(plan, { ...rec, kernel: narrow.kernel });
+		const fromNarrow = predict(plan, narrow);
+		for (const s of ['memory', 'block', 'selective', 'stream'] as const) {
+			const compute = (e: typeof wide) => e.strategies.find((x) => x.strategy === s)!.breakdown.compute;
+			expect(compute(fromNarrow) / compute(wide), s).toBeCloseTo(1, 2);
+		}
+	});
 });

@@ -11,6 +11,8 @@ export const STRATEGIES = ['memory', 'block', 'selective', 'stream'] as const;
 export const calibrationRunSchema = z.object({
 	strategy: z.enum(STRATEGIES),
 	rows: z.number().int().positive(),
+	/** feature dimension of this run's data when it is not the record's (synthetic sets keep the plan's rows per feature) */
+	features: z.number().int().positive().optional(),
 	seed: z.number().int(),
 	/** cache / block budget given to the engine; null = unlimited */
 	memoryBytes: z.number().positive().nullable(),
@@ -82,7 +84,7 @@ export const calibrationRecordSchema = z.object({
 	}),
 	/** the plan this calibration was made for */
 	plan: planSchema,
-	/** feature dimension the runs used (synthetic: the plan's, capped to what this machine can hold; sample: the sample's) */
+	/** the plan's feature dimension, capped to what this machine can hold (a sample's own); the kernel phase measures at it, runs use fewer when `run.features` says so */
 	features: z.number().int().positive(),
 	seeds: z.array(z.number().int()).min(1),
 	durationSeconds: z.number().nonnegative(),

@@ -1,8 +1,9 @@
 /**
  * Calibration: run the real engine on small synthetic data shaped like the plan's dataset
- * (same k, p, value kind, loss, C, tol; the plan's feature dimension up to what this machine
- * can hold) under the memory budget and reader throttle that reproduce the target machine's
- * cache fraction and trainer-to-reader speed ratio, and record what the model needs.
+ * (same k, p, value kind, loss, C, tol, and the plan's rows per feature) under the memory budget
+ * and reader throttle that reproduce the target machine's cache fraction and trainer-to-reader
+ * speed ratio, and record what the model needs. The per-update cost at the plan's own feature
+ * dimension (the weight vector's place in the memory hierarchy) comes from the kernel phase.
  *
  * Per strategy: a pilot run sizes the rest to the time budget; then runs at a larger row
  * count, a second seed (the spread), a second cache fraction (the RAM slope) and, for stream,
@@ -58,6 +59,9 @@ const MIN_FRACTION = 1 / 16;
 /** budget bytes each strategy needs beyond its state to run at all (engine minimums with headroom) */
 const MIN_BUDGET: Record<StrategyName, number> = { memory: 0, block: 96 * 1024, selective: 384 * 1024, stream: 256 * 1024 };
 const MIN_ROWS = 1000;
+/** fewest features a calibration set gets however many rows per feature the plan has (rows stay sparse) */
+const MIN_RUN_FEATURES_PER_NNZ = 4;
+const MIN_RUN_FEATURES = 1000;
 /** budget over the rows' bytes when the target holds all of them */
 const FULL_HEADROOM = 1.05;
 
@@ -100,9 +104,19 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		progress('kernel', 'measuring cost per coordinate update');
 		const kernel: KernelPoint[] = [];
 		const ks = [...new Set([Math.max(1, Math.round(k / 2)), Math.round(k), Math.min(features, Math.round(k * 2))])];
-		const dims = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
+		const dims: number[] = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
 		const real = ds.valueKind === 'real';
-		for (const d of dims) for (const kk of ks) kernel.push(measureKernel(kk, d, { real, seconds: 0.04, visit: true }));
+		// synthetic sets keep the plan's rows per feature: n/8 rows of a dataset with d/8 features converge in about
+		// the epochs the whole dataset needs, n/8 rows at d in far fewer (benchmarks/results/rows-per-feature.md)
+		const runFeatures = (rows: number) =>
+			sample ? features : Math.min(features, Math.max(MIN_RUN_FEATURES, MIN_RUN_FEATURES_PER_NNZ * k, Math.round((ds.features * rows) / ds.rows)));
+		// the runs' own (smaller) weight vectors get a kernel line of their own, so their compute carries to the plan's d
+		const smallD = runFeatures(MIN_ROWS * 16);
+		if (smallD * 2 < Math.min(...dims)) dims.push(smallD);
+		// rounds over every (d, k) and the median of each: the model carries run costs across d by the ratio of these
+		// points, so a change in the machine's load while they are measured must touch them all alike
+		const rounds = [0, 1, 2].map(() => dims.flatMap((d) => ks.map((kk) => measureKernel(kk, d, { real, seconds: 0.02, visit: true }))));
+		kernel.push(...rounds[0].map((p, i) => ({ ...p, nsPerUpdate: median(rounds.map((r) => r[i].nsPerUpdate)) })));
 		const kernelFit = fitKernelLines(kernel);
 		// the same step over row sets beyond the CPU caches: rows of a large dataset sit further out in the memory hierarchy
 		for (const rowBytes of [32 << 20, 128 << 20]) kernel.push(measureKernel(k, features, { real, seconds: 0.06, rowBytes, visit: true }));
@@ -115,7 +129,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			if (!path) {
 				path = join(dir, `rows-${key}.${format}`);
 				if (sample) await sample.write(rows, seed, seeds[0], path, format);
-				else await generateToFile({ rows, features, nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
+				else await generateToFile({ rows, features: runFeatures(rows), nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
 				files.set(key, path);
 			}
 			return path;
@@ -158,9 +172,12 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const rowsRam = cachedRowsBytes(s, rows, k, ds.valueKind);
 				// a whole-data budget gets headroom: generated row lengths scatter around k, and a cache a few rows short re-reads the file
 				const rowBytes = fraction >= 1 ? rowsRam * FULL_HEADROOM : fraction * rowsRam;
-				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(rowBytes, MIN_BUDGET[s]));
-				const state = engineStateBytes(s, rows, features, logistic, memoryBytes);
-				const diskMBps = throttle(readBps);
+				const d = runFeatures(rows);
+				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, d, logistic, Math.max(rowBytes, MIN_BUDGET[s]));
+				const state = engineStateBytes(s, rows, d, logistic, memoryBytes);
+				// a run's smaller weight vector makes its trainer faster: the reader speeds up alike, keeping the plan's ratio
+				const nsRun = kernelNs(kernelFit, k, d);
+				const diskMBps = throttle((readBps * nsCal) / nsRun);
 				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps, ...(maxEpochs !== undefined ? { maxEpochs } : {}) });
 				const capped = maxEpochs !== undefined && maxEpochs < DEFAULT_MAX_EPOCHS && rep.gap > tr.tol;
 				const bytesOnDisk = binaryBytesPerRow(rows, k, ds.valueKind) * rows;
@@ -170,12 +187,13 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const run: CalibrationRun = {
 					strategy: s,
 					rows,
+					...(d !== features ? { features: d } : {}),
 					seed,
 					memoryBytes: memoryBytes ?? null,
 					diskMBps: diskMBps ?? null,
 					cacheFraction: s === 'memory' ? 1 : Math.min(1, (memoryBytes! - state) / rowsRam),
 					blocks: s === 'block' || s === 'selective' ? Math.max(1, Math.ceil(1 / Math.min(1, (memoryBytes! - state) / rowsRam))) : 1,
-					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsCal * 1e-9),
+					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsRun * 1e-9),
 					bytesOnDisk,
 					epochs: rep.epochs,
 					passes: rep.passes,

@@ -205,8 +205,8 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	const k = rec.plan.dataset.nnzPerRow;
 	// runs are taken as they ran: a short reference measurement before them tracks the machine's load worse than
 	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
-	const tKernel = kernelNs(kernel, k, rec.features) * 1e-9;
-	const computeModel = runs.map((r) => r.updates * tKernel);
+	// at each run's own feature dimension: smaller weight vectors than the plan's sit nearer the core
+	const computeModel = runs.map((r) => r.updates * kernelNs(kernel, k, r.features ?? rec.features) * 1e-9);
 	// the rows' own memory stalls at each run's size come off before the ratio is fitted
 	const stalls = runs.map((r) => r.updates * extraNsForRows(footprint, trainerRowBytes(strategy, r.rows, r.cacheFraction, k, rec.plan.dataset.valueKind, rec.plan.training.loss === 'logistic')) * 1e-9);
 	const { ratio: costRatio, fixed: computeFixed } = fitCost(
