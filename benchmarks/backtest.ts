@@ -40,7 +40,7 @@ for (const file of files.sort()) {
 		for (const run of held) {
 			const plan = {
 				...rec.plan,
-				dataset: { ...rec.plan.dataset, rows: run.rows, features: rec.features, format: 'binary' as const, compressed: false, bytesOnDisk: undefined },
+				dataset: { ...rec.plan.dataset, rows: run.rows, features: run.features ?? rec.features, format: 'binary' as const, compressed: false, bytesOnDisk: undefined },
 				machine: { ...rec.plan.machine, coreSpeed: rec.machine.coreSpeed, diskMBps: run.diskMBps ?? rec.decode.binaryMBps * 10, diskInterface: 'pcie5x4' as const },
 				training: { ...rec.plan.training, cValues: 1, folds: 1 }
 			};

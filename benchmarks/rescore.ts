@@ -24,7 +24,9 @@ const files = readdirSync(dir)
 	.sort((a, b) => Number(a.replace(/\D/g, '')) - Number(b.replace(/\D/g, '')));
 endQuietlyOnClosedPipe();
 const errs: number[] = [];
+const baselineErrs: number[] = [];
 let inside = 0;
+let passesWithin = 0;
 const f1 = (x: number) => x.toFixed(1);
 if (markdown) console.log('| job | strategy | rows | loss, C | RAM share | disk MB/s | passes meas / pred | hit rate meas / pred | wall s meas | wall s pred p10 / p50 / p90 | error |\n|---|---|---|---|---|---|---|---|---|---|---|');
 else console.log('job strategy      wall meas/pred      error  passes meas/pred  epochs meas/pred  read meas/pred  compute meas/pred');
@@ -39,6 +41,10 @@ for (const f of files) {
 	const wall = mean((r) => r.wallSeconds);
 	const err = Math.abs(est.wallSeconds.p50 - wall) / wall;
 	errs.push(err);
+	baselineErrs.push(Math.abs(saved.baseline - wall) / wall);
+	const passesMeasured = mean((r) => r.passes);
+	// the validation's pass target: within 1 pass or 20 %, whichever is larger
+	if (Math.abs(est.passes.p50 - passesMeasured) <= Math.max(1, 0.2 * passesMeasured)) passesWithin++;
 	if (wall >= est.wallSeconds.p10 && wall <= est.wallSeconds.p90) inside++;
 	const read = est.breakdown.prepare + est.breakdown.read;
 	const j = saved.job;
@@ -53,4 +59,6 @@ for (const f of files) {
 		`${String(saved.job.id).padStart(3)} ${saved.job.strategy.padEnd(10)} ${f1(wall).padStart(7)} / ${f1(est.wallSeconds.p50).padEnd(7)} ${(err * 100).toFixed(0).padStart(4)} %  ${f1(mean((r) => r.passes)).padStart(6)} / ${f1(est.passes.p50).padEnd(7)} ${f1(mean((r) => r.epochs)).padStart(6)} / ${f1(est.epochs).padEnd(7)} ${f1(mean((r) => r.readSeconds)).padStart(5)} / ${f1(read).padEnd(6)} ${f1(mean((r) => r.computeSeconds)).padStart(6)} / ${f1(est.breakdown.compute)}`
 	);
 }
-console.log(`median ${(median(errs) * 100).toFixed(0)} %, worst ${(Math.max(...errs) * 100).toFixed(0)} % over ${errs.length} jobs; measured wall inside p10–p90 for ${inside}`);
+console.log(
+	`median ${(median(errs) * 100).toFixed(0)} %, worst ${(Math.max(...errs) * 100).toFixed(0)} % over ${errs.length} jobs; model ÷ baseline median ${(median(errs) / median(baselineErrs)).toFixed(2)}; passes within 1 or 20 % for ${passesWithin}; measured wall inside p10–p90 for ${inside}`
+);

@@ -71,4 +71,20 @@ describe('fitModel', () => {
 			expect(compute(fromNarrow) / compute(wide), s).toBeCloseTo(1, 2);
 		}
 	});
+
+	it('fits time outside the read and compute timers that grows with rows × passes, and adds it to block and selective wall time', () => {
+		const rec = aRecord();
+		const perRowPass = 2e-7;
+		const busy = { ...rec, runs: rec.runs.map((r) => (r.strategy === 'selective' ? { ...r, wallSeconds: r.wallSeconds + perRowPass * r.rows * r.passes } : r)) };
+		expect(fitModel(rec).strategies.selective!.secondsPerRowPass).toBeCloseTo(0, 12);
+		expect(fitModel(busy).strategies.selective!.secondsPerRowPass).toBeCloseTo(perRowPass, 12);
+		// stream's passes rise with a faster disk, so its overhead stays fixed
+		expect(fitModel({ ...rec, runs: rec.runs.map((r) => (r.strategy === 'stream' ? { ...r, wallSeconds: r.wallSeconds + perRowPass * r.rows * r.passes } : r)) }).strategies.stream!.secondsPerRowPass).toBe(0);
+		const plan = aPlan();
+		const at = (r: typeof rec) => predict(plan, r).strategies.find((e) => e.strategy === 'selective')!;
+		const extra = at(busy).wallSeconds.p50 - at(rec).wallSeconds.p50;
+		const e = at(busy);
+		// passes here count the engine's passes (no conversion: the plan's rows are binary)
+		expect(extra).toBeCloseTo(perRowPass * plan.dataset.rows * e.passes.p50 * (rec.machine.coreSpeed / plan.machine.coreSpeed), 3);
+	});
 });

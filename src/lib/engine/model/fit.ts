@@ -34,6 +34,8 @@ export interface StrategyFit {
 	/** share of min(read, compute) hidden by overlap */
 	overlap: number;
 	overheadSeconds: number;
+	/** seconds per row per pass spent outside the read and compute timers (block and selective join working sets, estimate gaps), on the calibration machine */
+	secondsPerRowPass: number;
 	/** relative spread (sd of ln wall) between repeated seeds */
 	seedSpread: number;
 	/** largest rows calibrated */
@@ -221,12 +223,17 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	// overlap with compute do not carry to a plan's size (measured read ratios settle as rows grow)
 	const throttledTop = Math.max(...throttled.map((r) => r.rows));
 	const throttleRatio = throttled.length > 0 ? median(throttled.filter((r) => r.rows === throttledTop).map((r) => (r.readSeconds * r.diskMBps! * 1e6) / (r.passes * r.bytesOnDisk))) : 1;
-	// wall − read − compute = overhead − overlap × min(read, compute); only stream reads while it trains
+	// wall − read − compute = overhead + bookkeeping × rows × passes − overlap × min(read, compute). Only stream reads
+	// while it trains. The others copy rows into working sets and estimate the gap outside the timers, once per row
+	// and pass (selective: about 30 % of its compute at every rung); stream keeps a fixed overhead, since its passes
+	// rise as the disk gets faster and a per-pass cost there could make a faster disk look slower
 	const scaleMin = Math.max(1e-9, ...runs.map((r) => Math.min(r.readSeconds, r.computeSeconds)));
+	const rowPasses = runs.map((r) => r.rows * Math.max(1, r.passes));
+	const scaleRowPasses = Math.max(1, ...rowPasses);
 	const lap = fitLinear(
-		runs.map((r) => [-Math.min(r.readSeconds, r.computeSeconds) / scaleMin]),
+		runs.map((r, i) => [-Math.min(r.readSeconds, r.computeSeconds) / scaleMin, rowPasses[i] / scaleRowPasses]),
 		runs.map((r) => r.wallSeconds - r.readSeconds - r.computeSeconds),
-		[strategy === 'stream' ? [0, scaleMin] : [0, 0]]
+		strategy === 'stream' ? [[0, scaleMin], NONE] : [NONE, NONNEG]
 	);
 	// spread between seeds at the same setting, pooled over settings
 	const groups = new Map<string, number[]>();
@@ -256,6 +263,7 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 		throttleRatio: Number.isFinite(throttleRatio) ? Math.min(3, Math.max(0.1, throttleRatio)) : 1,
 		overlap: lap.coef[1] / scaleMin,
 		overheadSeconds: Math.max(0, lap.coef[0]) + computeFixed,
+		secondsPerRowPass: lap.coef[2] / scaleRowPasses,
 		seedSpread: dof > 0 ? Math.sqrt(ss / dof) : 0.1,
 		rowsMax: Math.max(...runs.map((r) => r.rows)),
 		fractionRange: [Math.min(...runs.map((r) => r.cacheFraction)), Math.max(...runs.map((r) => r.cacheFraction))],

@@ -112,7 +112,9 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	const overlapShare = m.cores >= 2 ? f.overlap : 0;
 	const overlap = overlapShare * Math.min(read, compute);
 	const prepare = ctx.conversion.seconds + read / passesEngine;
-	const wall50 = f.overheadSeconds + ctx.conversion.seconds + read + compute - overlap;
+	// bookkeeping outside the timers, per row and pass, is CPU work: it scales with the target's cores
+	const bookkeeping = f.secondsPerRowPass * rows * passesEngine * ctx.cpuScale;
+	const wall50 = f.overheadSeconds + bookkeeping + ctx.conversion.seconds + read + compute - overlap;
 	// the residual spread, plus the fitted curve's own standard error at x (regression prediction interval)
 	const sdAt = (g: LinearFit) => g.sd * Math.sqrt(1 + leverage(g, x));
 	const sigmaWall = Math.hypot(f.seedSpread, Math.max(sdAt(f.passes), sdAt(f.updatesPerRow)), ctx.widening, ctx.model.loadSpread);
