@@ -11,6 +11,7 @@ Write a seeded synthetic binary-classification dataset, streamed to disk.
 
   --rows N          rows (default ${D.rows})
   --features D      feature dimension (default ${D.features})
+  --index-range R   spread the D features over indices 0..R (R ≥ D; the file's dimension; default D)
   --nnz K           mean nonzeros per row (default ${D.nnz})
   --nnz-spread S    coefficient of variation of the row length, 0 = fixed (default ${D.nnzSpread})
   --positive P      positive fraction, within [noise, 1 - noise] (default ${D.positive})
@@ -25,6 +26,7 @@ Write a seeded synthetic binary-classification dataset, streamed to disk.
 const fieldFlag: Record<keyof GenerateOptions, string> = {
 	rows: 'rows',
 	features: 'features',
+	indexRange: 'index-range',
 	nnz: 'nnz',
 	nnzSpread: 'nnz-spread',
 	positive: 'positive',
@@ -41,6 +43,7 @@ export const gen: Command = {
 		const { values: f } = parseFlags(argv, {
 			rows: { type: 'string' },
 			features: { type: 'string' },
+			'index-range': { type: 'string' },
 			nnz: { type: 'string' },
 			'nnz-spread': { type: 'string' },
 			positive: { type: 'string' },
@@ -56,6 +59,7 @@ export const gen: Command = {
 		const opts: GenerateOptions = {
 			rows: numberFlag(f.rows, 'rows', { default: D.rows, min: 1, integer: true }),
 			features: numberFlag(f.features, 'features', { default: D.features, min: 1, integer: true }),
+			indexRange: f['index-range'] === undefined ? undefined : numberFlag(f['index-range'], 'index-range', { min: 1, integer: true }),
 			nnz: numberFlag(f.nnz, 'nnz', { default: D.nnz, min: 1 }),
 			nnzSpread: numberFlag(f['nnz-spread'], 'nnz-spread', { default: D.nnzSpread, min: 0 }),
 			positive: numberFlag(f.positive, 'positive', { default: D.positive }),

@@ -31,8 +31,12 @@ async function attempt(): Promise<{ error: number; text: string }[]> {
 	expect(new Set(seen.map((p) => p.phase))).toEqual(new Set(['machine', 'kernel', 'decode', 'memory', 'stream', 'done']));
 	expect(seen.every((p, i) => i === 0 || p.fraction >= seen[i - 1].fraction)).toBe(true);
 	expect(Math.max(...rec.runs.map((r) => r.rows))).toBe(16_000);
-	// synthetic sets keep the plan's rows per feature (50 000 features for 16 000 rows), down to 1 000 features
-	for (const r of rec.runs) expect(r.features ?? rec.features, `${r.strategy} at ${r.rows} rows`).toBe(Math.max(1000, Math.round((50_000 * r.rows) / 16_000)));
+	// synthetic sets keep the plan's rows per feature (50 000 features for 16 000 rows), down to 1 000 features,
+	// spread over the plan's weight vector
+	for (const r of rec.runs) {
+		expect(r.featuresUsed ?? rec.features, `${r.strategy} at ${r.rows} rows`).toBe(Math.max(1000, Math.round((50_000 * r.rows) / 16_000)));
+		expect(r.features, `${r.strategy} at ${r.rows} rows`).toBeUndefined();
+	}
 
 	// the plan's machine is this machine as calibrated, so the estimate is for the run below
 	const here = { ...plan, machine: { ...plan.machine, coreSpeed: rec.machine.coreSpeed } };

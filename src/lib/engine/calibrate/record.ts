@@ -11,8 +11,10 @@ export const STRATEGIES = ['memory', 'block', 'selective', 'stream'] as const;
 export const calibrationRunSchema = z.object({
 	strategy: z.enum(STRATEGIES),
 	rows: z.number().int().positive(),
-	/** feature dimension of this run's data when it is not the record's (synthetic sets keep the plan's rows per feature) */
+	/** feature dimension of this run's data when it is not the record's (calibrations of 2026-12-03 08:15–09:30 ran on smaller weight vectors) */
 	features: z.number().int().positive().optional(),
+	/** distinct features the run's rows draw from, spread over the record's feature dimension (synthetic sets keep the plan's rows per feature); absent: all of them */
+	featuresUsed: z.number().int().positive().optional(),
 	seed: z.number().int(),
 	/** cache / block budget given to the engine; null = unlimited */
 	memoryBytes: z.number().positive().nullable(),
@@ -84,7 +86,7 @@ export const calibrationRecordSchema = z.object({
 	}),
 	/** the plan this calibration was made for */
 	plan: planSchema,
-	/** the plan's feature dimension, capped to what this machine can hold (a sample's own); the kernel phase measures at it, runs use fewer when `run.features` says so */
+	/** feature dimension of the kernel measurements and the runs' weight vectors: the plan's, capped to what this machine can hold (a sample's own) */
 	features: z.number().int().positive(),
 	seeds: z.array(z.number().int()).min(1),
 	durationSeconds: z.number().nonnegative(),

@@ -1,9 +1,8 @@
 /**
  * Calibration: run the real engine on small synthetic data shaped like the plan's dataset
- * (same k, p, value kind, loss, C, tol, and the plan's rows per feature) under the memory budget
- * and reader throttle that reproduce the target machine's cache fraction and trainer-to-reader
- * speed ratio, and record what the model needs. The per-update cost at the plan's own feature
- * dimension (the weight vector's place in the memory hierarchy) comes from the kernel phase.
+ * (same k, p, value kind, loss, C, tol, and the plan's rows per feature, spread over the plan's
+ * own weight vector) under the memory budget and reader throttle that reproduce the target
+ * machine's cache fraction and trainer-to-reader speed ratio, and record what the model needs.
  *
  * Per strategy: a pilot run sizes the rest to the time budget; then runs at a larger row
  * count, a second seed (the spread), a second cache fraction (the RAM slope) and, for stream,
@@ -107,14 +106,12 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		const dims: number[] = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
 		const real = ds.valueKind === 'real';
 		// synthetic sets keep the plan's rows per feature: n/8 rows of a dataset with d/8 features converge in about
-		// the epochs the whole dataset needs, n/8 rows at d in far fewer (benchmarks/results/rows-per-feature.md)
+		// the epochs the whole dataset needs, n/8 rows at d in far fewer (benchmarks/results/rows-per-feature.md).
+		// Those features are spread over all d indices, so the weight vector keeps the plan's footprint.
 		const runFeatures = (rows: number) =>
 			sample ? features : Math.min(features, Math.max(MIN_RUN_FEATURES, MIN_RUN_FEATURES_PER_NNZ * k, Math.round((ds.features * rows) / ds.rows)));
-		// the runs' own (smaller) weight vectors get a kernel line of their own, so their compute carries to the plan's d
-		const smallD = runFeatures(MIN_ROWS * 16);
-		if (smallD * 2 < Math.min(...dims)) dims.push(smallD);
-		// rounds over every (d, k) and the median of each: the model carries run costs across d by the ratio of these
-		// points, so a change in the machine's load while they are measured must touch them all alike
+		// rounds over every (d, k) and the median of each, so a change in the machine's load while they are measured
+		// touches them all alike
 		const rounds = [0, 1, 2].map(() => dims.flatMap((d) => ks.map((kk) => measureKernel(kk, d, { real, seconds: 0.02, visit: true }))));
 		kernel.push(...rounds[0].map((p, i) => ({ ...p, nsPerUpdate: median(rounds.map((r) => r[i].nsPerUpdate)) })));
 		const kernelFit = fitKernelLines(kernel);
@@ -129,7 +126,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			if (!path) {
 				path = join(dir, `rows-${key}.${format}`);
 				if (sample) await sample.write(rows, seed, seeds[0], path, format);
-				else await generateToFile({ rows, features: runFeatures(rows), nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
+				else await generateToFile({ rows, features: runFeatures(rows), indexRange: features, nnz: k, positive: ds.positiveFraction, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: ds.valueKind, seed }, path, format);
 				files.set(key, path);
 			}
 			return path;
@@ -172,12 +169,10 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const rowsRam = cachedRowsBytes(s, rows, k, ds.valueKind);
 				// a whole-data budget gets headroom: generated row lengths scatter around k, and a cache a few rows short re-reads the file
 				const rowBytes = fraction >= 1 ? rowsRam * FULL_HEADROOM : fraction * rowsRam;
-				const d = runFeatures(rows);
-				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, d, logistic, Math.max(rowBytes, MIN_BUDGET[s]));
-				const state = engineStateBytes(s, rows, d, logistic, memoryBytes);
-				// a run's smaller weight vector makes its trainer faster: the reader speeds up alike, keeping the plan's ratio
-				const nsRun = kernelNs(kernelFit, k, d);
-				const diskMBps = throttle((readBps * nsCal) / nsRun);
+				const used = runFeatures(rows);
+				const memoryBytes = s === 'memory' ? undefined : budgetForRows(s, rows, features, logistic, Math.max(rowBytes, MIN_BUDGET[s]));
+				const state = engineStateBytes(s, rows, features, logistic, memoryBytes);
+				const diskMBps = throttle(readBps);
 				const rep = await train({ data, loss: tr.loss, C: tr.C, tol: tr.tol, strategy: s, seed, memoryBytes, diskMBps, ...(maxEpochs !== undefined ? { maxEpochs } : {}) });
 				const capped = maxEpochs !== undefined && maxEpochs < DEFAULT_MAX_EPOCHS && rep.gap > tr.tol;
 				const bytesOnDisk = binaryBytesPerRow(rows, k, ds.valueKind) * rows;
@@ -187,13 +182,13 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const run: CalibrationRun = {
 					strategy: s,
 					rows,
-					...(d !== features ? { features: d } : {}),
+					...(used !== features ? { featuresUsed: used } : {}),
 					seed,
 					memoryBytes: memoryBytes ?? null,
 					diskMBps: diskMBps ?? null,
 					cacheFraction: s === 'memory' ? 1 : Math.min(1, (memoryBytes! - state) / rowsRam),
 					blocks: s === 'block' || s === 'selective' ? Math.max(1, Math.ceil(1 / Math.min(1, (memoryBytes! - state) / rowsRam))) : 1,
-					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsRun * 1e-9),
+					updatesPerRead: updatesPerRead(bytesOnDisk / rows, rate, nsCal * 1e-9),
 					bytesOnDisk,
 					epochs: rep.epochs,
 					passes: rep.passes,

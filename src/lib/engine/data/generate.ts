@@ -5,7 +5,9 @@
  * - row length: lognormal around `nnz` with coefficient of variation `nnzSpread`, clamped to [1, features];
  * - feature popularity: rank r in 1..d drawn with density ∝ r^-skew (a continuous Zipf-like law,
  *   floored to ranks); ranks map to feature indices by a seeded affine permutation so popular
- *   features are scattered over the index range; the indices of a row are distinct and ascending;
+ *   features are scattered over the index range (0..d, or 0..indexRange when that is larger: the
+ *   same rows with their features spread over a wider weight vector); the indices of a row are
+ *   distinct and ascending;
  * - values: binary (1) or real (whole thousandths in (0, 1], so text rows round-trip to f32 exactly);
  * - labels: sign(w·x − t) of a hidden sparse weight vector w with N(0, 1) weights on a few popular
  *   features (in at most half of the rows each, chosen so a row holds about 10 of them on
@@ -26,6 +28,8 @@ export interface GenerateOptions {
 	rows: number;
 	/** features d */
 	features: number;
+	/** indices are spread over 0..indexRange (≥ features; the file's feature dimension); default `features` */
+	indexRange?: number;
 	/** mean nonzeros per row k */
 	nnz: number;
 	/** coefficient of variation of the row length; default 0.5 (0 = every row has k nonzeros) */
@@ -44,6 +48,7 @@ export interface GenerateOptions {
 export const GENERATE_DEFAULTS: Required<GenerateOptions> = {
 	rows: 100_000,
 	features: 100_000,
+	indexRange: 0,
 	nnz: 50,
 	nnzSpread: 0.5,
 	positive: 0.5,
@@ -71,6 +76,8 @@ export function resolveGenerateOptions(opts: Partial<GenerateOptions>): Required
 	};
 	if (!Number.isInteger(o.rows) || o.rows < 1) fail('rows', `must be a whole number ≥ 1, got ${o.rows}`);
 	if (!Number.isInteger(o.features) || o.features < 1 || o.features > 0xfffffffe) fail('features', `must be a whole number from 1 to ${0xfffffffe}, got ${o.features}`);
+	if (o.indexRange === 0) o.indexRange = o.features;
+	if (!Number.isInteger(o.indexRange) || o.indexRange < o.features || o.indexRange > 0xfffffffe) fail('indexRange', `must be a whole number from features (${o.features}) to ${0xfffffffe}, got ${o.indexRange}`);
 	if (!(o.nnz >= 1) || o.nnz > o.features) fail('nnz', `must be from 1 to features (${o.features}), got ${o.nnz}`);
 	if (!(o.nnzSpread >= 0) || o.nnzSpread > 10) fail('nnzSpread', `must be from 0 to 10, got ${o.nnzSpread}`);
 	if (!(o.noise >= 0 && o.noise < 0.5)) fail('noise', `must be at least 0 and below 0.5, got ${o.noise}`);
@@ -112,7 +119,8 @@ class RowSource {
 	private readonly e: number;
 	private readonly A: number;
 	private readonly logD1: number;
-	// affine permutation rank → index
+	// affine permutation rank → index over 0..range
+	private readonly range: number;
 	private readonly mulA: number;
 	private readonly addB: number;
 	// informative features: open-addressing table index → weight
@@ -130,6 +138,7 @@ class RowSource {
 	constructor(o: Required<GenerateOptions>, stream: number, structure: Random) {
 		this.rnd = new Random(o.seed, stream);
 		this.d = o.features;
+		this.range = o.indexRange;
 		this.k = o.nnz;
 		this.sigma = Math.sqrt(Math.log(1 + o.nnzSpread * o.nnzSpread));
 		this.real = o.values === 'real';
@@ -138,11 +147,11 @@ class RowSource {
 		this.A = Math.abs(this.e) < 1e-9 ? 0 : Math.pow(this.d + 1, this.e) - 1;
 		this.logD1 = Math.log(this.d + 1);
 		// structure (permutation and hidden weights) comes from its own stream, shared by all row sources
-		const maxMul = Math.max(1, Math.min(this.d, Math.floor(2 ** 53 / this.d) - 1));
+		const maxMul = Math.max(1, Math.min(this.range, Math.floor(2 ** 53 / this.range) - 1));
 		let a = 1 + structure.int(maxMul);
-		while (gcd(a, this.d) !== 1) a--;
+		while (gcd(a, this.range) !== 1) a--;
 		this.mulA = a;
-		this.addB = structure.int(this.d);
+		this.addB = structure.int(this.range);
 		const ranks = this.informativeRanks(structure);
 		let size = 4;
 		while (size < ranks.length * 4) size *= 2;
@@ -192,7 +201,7 @@ class RowSource {
 	}
 
 	private rankToIndex(r: number): number {
-		return (this.mulA * (r - 1) + this.addB) % this.d;
+		return (this.mulA * (r - 1) + this.addB) % this.range;
 	}
 
 	private slot(index: number): number {
@@ -217,7 +226,12 @@ class RowSource {
 		let r = this.A === 0 ? Math.floor(Math.exp(u * this.logD1)) : Math.floor(Math.pow(this.A * u + 1, 1 / this.e));
 		if (r < 1) r = 1;
 		else if (r > this.d) r = this.d;
-		return (this.mulA * (r - 1) + this.addB) % this.d;
+		return (this.mulA * (r - 1) + this.addB) % this.range;
+	}
+
+	/** a feature drawn without regard to popularity (spread over the range like the others when it is wider) */
+	private uniformIndex(): number {
+		return this.range === this.d ? this.rnd.int(this.d) : this.rankToIndex(1 + this.rnd.int(this.d));
 	}
 
 	/** Fill indices[0..length) with `len` distinct ascending indices. */
@@ -228,13 +242,14 @@ class RowSource {
 		}
 		const idx = this.indices;
 		if (len === this.d) {
-			for (let j = 0; j < len; j++) idx[j] = j;
+			for (let j = 0; j < len; j++) idx[j] = this.rankToIndex(j + 1);
+			idx.subarray(0, len).sort();
 			return;
 		}
 		let have = 0;
 		for (let round = 0; have < len; round++) {
 			const uniform = round >= MAX_DRAW_ROUNDS;
-			for (let j = have; j < len; j++) idx[j] = uniform ? this.rnd.int(this.d) : this.drawIndex();
+			for (let j = have; j < len; j++) idx[j] = uniform ? this.uniformIndex() : this.drawIndex();
 			const view = idx.subarray(0, len);
 			view.sort();
 			have = 1;
@@ -320,7 +335,7 @@ export function generateRows(opts: Partial<GenerateOptions>): SparseRows {
 		at += len;
 		rowPtr[i + 1] = at;
 	}
-	return { n: o.rows, d: o.features, labels, rowPtr, indices: indices.slice(0, at), values: values ? values.slice(0, at) : null };
+	return { n: o.rows, d: o.indexRange, labels, rowPtr, indices: indices.slice(0, at), values: values ? values.slice(0, at) : null };
 }
 
 /**
@@ -339,7 +354,7 @@ export async function generateToFile(
 	const real = o.values === 'real';
 	const sink =
 		format === 'bin'
-			? BinaryRowWriter.open(out, { d: o.features, valueKind: o.values })
+			? BinaryRowWriter.open(out, { d: o.indexRange, valueKind: o.values })
 			: SvmlightWriter.open(out);
 	const every = Math.max(1, Math.min(100_000, Math.floor(o.rows / 100)));
 	try {

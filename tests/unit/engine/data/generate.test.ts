@@ -110,6 +110,23 @@ describe('synthetic generator', () => {
 		expect(other.indices.slice(0, 100)).not.toEqual(generateRows({ ...base, rows: 2000, values: 'real' }).indices.slice(0, 100));
 	});
 
+	it('indexRange spreads the same rows over a wider weight vector: a relabelling of the features, nothing else', () => {
+		const compact = generateRows({ ...base, rows: 3000, features: 2000 });
+		const spread = generateRows({ ...base, rows: 3000, features: 2000, indexRange: 50_000 });
+		expect(spread.d).toBe(50_000);
+		expect(Math.max(...spread.indices)).toBeGreaterThan(2000);
+		sameRows(generateRows({ ...base, rows: 3000, features: 2000, indexRange: 2000 }), compact);
+		// each feature is known by the rows it occurs in: the two sets hold the same such signatures, and the same labels
+		const signatures = (s: SparseRows) => {
+			const rowsOf = new Map<number, number[]>();
+			for (let i = 0; i < s.n; i++) for (let p = s.rowPtr[i]; p < s.rowPtr[i + 1]; p++) rowsOf.set(s.indices[p], [...(rowsOf.get(s.indices[p]) ?? []), i]);
+			return [...rowsOf.values()].map((r) => r.join(',')).sort();
+		};
+		expect(signatures(spread)).toEqual(signatures(compact));
+		expect(Array.from(spread.labels)).toEqual(Array.from(compact.labels));
+		expect(() => resolveGenerateOptions({ ...base, features: 2000, indexRange: 1999 })).toThrow(/indexRange/);
+	});
+
 	it('real values are thousandths in (0, 1]; binary data has no values', () => {
 		const s = generateRows({ ...base, rows: 2000, values: 'real' });
 		const off = s.values!.filter((v) => !(v > 0 && v <= 1) || Math.fround(Math.round(v * 1000) / 1000) !== v);
