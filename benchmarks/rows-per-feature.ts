@@ -11,24 +11,16 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
-import type { Loss, ValueKind } from '../src/lib/engine/types.js';
-import { generateToFile, GENERATE_DEFAULTS } from '../src/lib/engine/data/generate.js';
 import { train } from '../src/lib/engine/solver/train.js';
 import { endQuietlyOnClosedPipe } from './report.js';
+import { writeShape, type DataShape } from './shapes.js';
 
 const { values: a } = parseArgs({ options: { seeds: { type: 'string', default: '21,22' }, shrink: { type: 'string', default: '8' } } });
 const seeds = a.seeds.split(',').map(Number);
 const shrink = Number(a.shrink);
 
-interface Shape {
+interface Shape extends DataShape {
 	name: string;
-	rows: number;
-	features: number;
-	k: number;
-	p: number;
-	values: ValueKind;
-	loss: Loss;
-	C: number;
 }
 // invented shapes spanning rows per feature from 0.25 to 2 and the three losses
 const shapes: Shape[] = [
@@ -42,7 +34,7 @@ endQuietlyOnClosedPipe();
 const dir = mkdtempSync(join(tmpdir(), 'loadline-rpf-'));
 const epochs = async (s: Shape, rows: number, features: number, seed: number) => {
 	const path = join(dir, `${s.name}-${rows}-${features}-${seed}.bin`);
-	await generateToFile({ rows, features, nnz: s.k, positive: s.p, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: s.values, seed }, path, 'bin');
+	await writeShape(s, path, seed, { rows, features });
 	const r = await train({ data: path, loss: s.loss, C: s.C, tol: 0.01, strategy: 'memory', seed: 1 });
 	rmSync(path, { force: true });
 	return r.epochs;

@@ -15,9 +15,8 @@ import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
-import type { Loss, StrategyName, TrainReport, ValueKind } from '../src/lib/engine/types.js';
+import type { StrategyName, TrainReport } from '../src/lib/engine/types.js';
 import type { Plan } from '../src/lib/schemas/plan.js';
-import { generateToFile, GENERATE_DEFAULTS } from '../src/lib/engine/data/generate.js';
 import { train } from '../src/lib/engine/solver/train.js';
 import { calibrate } from '../src/lib/engine/calibrate/run.js';
 import { measureCoreSpeed } from '../src/lib/engine/calibrate/kernel.js';
@@ -25,20 +24,14 @@ import { predict } from '../src/lib/engine/model/predict.js';
 import { binaryBytes, rowsInRamBytes } from '../src/lib/engine/model/sizes.js';
 import { budgetForRows } from '../src/lib/engine/model/sizes.js';
 import { median } from './report.js';
+import { writeShape, type DataShape } from './shapes.js';
 
 /** the baseline's fixed pass count, chosen before any job ran (common practice, no source) */
 const BASELINE_PASSES = 10;
 
-interface Job {
+interface Job extends DataShape {
 	id: number;
 	strategy: StrategyName;
-	rows: number;
-	features: number;
-	k: number;
-	p: number;
-	values: ValueKind;
-	loss: Loss;
-	C: number;
 	/** share of the rows the memory budget holds (ignored by memory) */
 	fraction: number;
 	diskMBps: number;
@@ -94,7 +87,7 @@ interface Row {
 async function realRuns(job: Job, budget: number | null): Promise<TrainReport[]> {
 	const data = join(dataDir, `job${job.id}-${job.rows}.bin`);
 	if (!existsSync(data))
-		await generateToFile({ rows: job.rows, features: job.features, nnz: job.k, positive: job.p, noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values: job.values, seed: 1 }, data, 'bin');
+		await writeShape(job, data, 1);
 	const reals: TrainReport[] = [];
 	for (const seed of [1, 2]) reals.push(await train({ data, loss: job.loss, C: job.C, tol: 0.01, strategy: job.strategy, seed, memoryBytes: budget ?? undefined, diskMBps: job.diskMBps }));
 	return reals;

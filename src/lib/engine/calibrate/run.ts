@@ -103,7 +103,7 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 		progress('kernel', 'measuring cost per coordinate update');
 		const kernel: KernelPoint[] = [];
 		const ks = [...new Set([Math.max(1, Math.round(k / 2)), Math.round(k), Math.min(features, Math.round(k * 2))])];
-		const dims: number[] = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
+		const dims = [...new Set([features, ...(features / 16 >= 1024 ? [Math.round(features / 16)] : [])])];
 		const real = ds.valueKind === 'real';
 		// synthetic sets keep the plan's rows per feature: n/8 rows of a dataset with d/8 features converge in about
 		// the epochs the whole dataset needs, n/8 rows at d in far fewer (benchmarks/results/rows-per-feature.md).

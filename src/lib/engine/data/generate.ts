@@ -226,10 +226,10 @@ class RowSource {
 		let r = this.A === 0 ? Math.floor(Math.exp(u * this.logD1)) : Math.floor(Math.pow(this.A * u + 1, 1 / this.e));
 		if (r < 1) r = 1;
 		else if (r > this.d) r = this.d;
-		return (this.mulA * (r - 1) + this.addB) % this.range;
+		return this.rankToIndex(r);
 	}
 
-	/** a feature drawn without regard to popularity (spread over the range like the others when it is wider) */
+	/** a feature drawn without regard to popularity, spread over the range like the others when it is wider (the plain draw otherwise keeps files made before indexRange the same) */
 	private uniformIndex(): number {
 		return this.range === this.d ? this.rnd.int(this.d) : this.rankToIndex(1 + this.rnd.int(this.d));
 	}
