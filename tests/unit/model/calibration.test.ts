@@ -31,6 +31,9 @@ async function attempt(): Promise<{ error: number; text: string }[]> {
 	expect(new Set(seen.map((p) => p.phase))).toEqual(new Set(['machine', 'kernel', 'decode', 'memory', 'stream', 'done']));
 	expect(seen.every((p, i) => i === 0 || p.fraction >= seen[i - 1].fraction)).toBe(true);
 	expect(Math.max(...rec.runs.map((r) => r.rows))).toBe(16_000);
+	// the second seed runs at the top rung, which weighs most in the curves, when the share holds it (memory's
+	// ladder ends at the plan's rows in a fraction of its share)
+	expect(rec.runs.filter((r) => r.strategy === 'memory' && r.rows === 16_000).map((r) => r.seed)).toEqual([1, 2]);
 	// synthetic sets keep the plan's rows per feature (50 000 features for 16 000 rows), down to 1 000 features,
 	// spread over the plan's weight vector
 	for (const r of rec.runs) {

@@ -211,7 +211,8 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 			};
 			// a ladder of doubling row counts at the target's ratios while the next rung fits the share,
 			// keeping room for the extra runs: the second seed (and stream's second reader speed) one rung
-			// below the new top, which is the current top, and the second cache fraction on the smallest rung
+			// below the new top, which is the current top, and the second cache fraction on the smallest rung;
+			// the second seed moves up to the top when the share left allows
 			const extrasAtTop = s === 'stream' ? 2 : 1;
 			const ladder: CalibrationRun[] = [];
 			let rows = pilotRows;
@@ -233,24 +234,29 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				notes.push(`${s}: not calibrated at ${rows} rows (${err instanceof Error ? err.message : String(err)})`);
 				if (ladder.length === 0) continue;
 			}
-			// extras one rung below the top (cheaper), or at the top when the ladder has one rung
-			const at = ladder.length >= 2 ? ladder[ladder.length - 2] : ladder[0];
+			const top = ladder[ladder.length - 1];
+			const below = ladder.length >= 2 ? ladder[ladder.length - 2] : top;
 			const seed2 = seeds[1] ?? seeds[0] + 1;
-			const fits = (rung: CalibrationRun) => elapsed() - started + rung.wallSeconds * 1.5 <= share;
+			const left = () => share - (elapsed() - started);
+			const fits = (rung: CalibrationRun, margin = 1.5) => rung.wallSeconds * margin <= left();
 			// an extra run at other settings may converge far slower than the rung it copies (block minimization
 			// with twice the blocks): its epochs are capped by the share left, at the rate the rung ran
 			const epochCap = (rung: CalibrationRun) => {
 				const perEpoch = rung.wallSeconds / Math.max(1, rung.epochs);
-				return Math.max(5, Math.min(DEFAULT_MAX_EPOCHS, Math.floor((share - (elapsed() - started)) / Math.max(1e-6, perEpoch))));
+				return Math.max(5, Math.min(DEFAULT_MAX_EPOCHS, Math.floor(left() / Math.max(1e-6, perEpoch))));
 			};
-			if (fits(at)) await runOne(at.rows, seed2, f1, calReadBps, epochCap(at));
 			// the second cache fraction on the smallest rung: its cost is the least predictable
 			if (s !== 'memory' && fits(ladder[0])) await runOne(ladder[0].rows, seeds[0], f2, calReadBps, epochCap(ladder[0]));
-			if (s === 'stream' && fits(at)) {
+			if (s === 'stream' && fits(below)) {
 				// a second trainer-to-reader ratio: a 4× faster reader when the throttle allows, else half speed
 				const faster = calReadBps * 4 < decodeBps * 0.9;
-				await runOne(at.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2, epochCap(at));
+				await runOne(below.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2, epochCap(below));
 			}
+			// the second seed at the top rung, which weighs most in the curves, when the share left holds it: one
+			// stray draw there (a block run needing twice the epochs of every rung below) would otherwise carry the
+			// extrapolation alone. Else one rung below, which the ladder kept room for
+			const seedAt = fits(top, 1.2) ? top : fits(below) ? below : null;
+			if (seedAt) await runOne(seedAt.rows, seed2, f1, calReadBps, epochCap(seedAt));
 		}
 		// other load on the machine moves single measurements: state everything at the median load
 		const typical = median(references);
