@@ -64,6 +64,22 @@ const MIN_RUN_FEATURES = 1000;
 /** budget over the rows' bytes when the target holds all of them */
 const FULL_HEADROOM = 1.05;
 
+/** rungs shorter than this are mostly fixed costs (start-up, files): their ratios say nothing of growth (chosen, not measured) */
+const MIN_GROWTH_SECONDS = 0.25;
+
+/**
+ * Expected wall-time ratio of the ladder's next doubling: the last one's, at least 2, and raised by
+ * how much it rose over the one before (a run whose epochs climb with rows costs more per doubling
+ * at every rung), at most twofold.
+ */
+export function nextGrowth(walls: number[]): number {
+	const n = walls.length;
+	if (n < 2) return 2.5;
+	const step = walls[n - 1] / Math.max(1e-3, walls[n - 2]);
+	const rise = n >= 3 && walls[n - 3] >= MIN_GROWTH_SECONDS ? Math.min(2, Math.max(1, step / (walls[n - 2] / walls[n - 3]))) : 1;
+	return Math.max(2, step * rise);
+}
+
 function median(xs: number[]): number {
 	const s = [...xs].sort((a, b) => a - b);
 	const m = s.length >> 1;
@@ -209,24 +225,22 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				progress(s, `${s}: ${rows} rows, cache fraction ${run.cacheFraction.toFixed(3)}, ${rep.passes} passes, ${rep.wallSeconds.toFixed(2)} s`);
 				return run;
 			};
-			// a ladder of doubling row counts at the target's ratios while the next rung fits the share,
-			// keeping room for the extra runs: the second seed (and stream's second reader speed) one rung
-			// below the new top, which is the current top, and the second cache fraction on the smallest rung;
-			// the second seed moves up to the top when the share left allows
-			const extrasAtTop = s === 'stream' ? 2 : 1;
+			// a ladder of doubling row counts at the target's ratios while the next rung fits the share, keeping
+			// room for the extra runs: the second seed at the new top (the curves weigh the top rung most, and one
+			// stray draw there would carry the extrapolation alone), stream's second reader speed one rung below
+			// it, and the second cache fraction on the smallest rung
 			const ladder: CalibrationRun[] = [];
 			let rows = pilotRows;
-			let growth = 2.5;
 			try {
 				while (true) {
 					ladder.push(await runOne(rows, seeds[0], f1, calReadBps));
 					const last = ladder[ladder.length - 1].wallSeconds;
-					if (ladder.length >= 2) growth = Math.max(2, last / Math.max(1e-3, ladder[ladder.length - 2].wallSeconds));
+					const growth = nextGrowth(ladder.map((r) => r.wallSeconds));
 					const next = Math.min(ds.rows, maxRows, rows * 2);
 					const spent = elapsed() - started;
 					// growth is per doubling; the last rung may be a partial step up to the plan's rows
 					const nextCost = last * growth ** Math.log2(next / rows);
-					const extras = extrasAtTop * last + (s === 'memory' ? 0 : ladder[0].wallSeconds);
+					const extras = nextCost + (s === 'stream' ? last : 0) + (s === 'memory' ? 0 : ladder[0].wallSeconds);
 					if (next <= rows || spent + nextCost + extras > share) break;
 					rows = next;
 				}
@@ -252,10 +266,9 @@ export async function calibrate(plan: Plan, opts: CalibrateOptions = {}): Promis
 				const faster = calReadBps * 4 < decodeBps * 0.9;
 				await runOne(below.rows, seeds[0], f1, faster ? calReadBps * 4 : calReadBps / 2, epochCap(below));
 			}
-			// the second seed at the top rung, which weighs most in the curves, when the share left holds it: one
-			// stray draw there (a block run needing twice the epochs of every rung below) would otherwise carry the
-			// extrapolation alone. Else one rung below, which the ladder kept room for
-			const seedAt = fits(top, 1.2) ? top : fits(below) ? below : null;
+			// the second seed at the top rung, which the ladder kept room for; one rung below when the top took
+			// longer than the ladder expected
+			const seedAt = fits(top, 1) ? top : fits(below) ? below : null;
 			if (seedAt) await runOne(seedAt.rows, seed2, f1, calReadBps, epochCap(seedAt));
 		}
 		// other load on the machine moves single measurements: state everything at the median load
