@@ -23,7 +23,8 @@ export interface ThrottleClock {
 
 /** Timers wake a millisecond or so late and cannot wait less than one: the last stretch is waited by blocking. */
 const TIMER_SLACK_MS = 2;
-const parked = new Int32Array(new SharedArrayBuffer(4));
+/** made on first use, so importing this module never needs SharedArrayBuffer */
+let parked: Int32Array | undefined;
 
 export const realClock: ThrottleClock = {
 	now: () => performance.now(),
@@ -32,7 +33,7 @@ export const realClock: ThrottleClock = {
 		if (ms > TIMER_SLACK_MS) await new Promise((resolve) => setTimeout(resolve, ms - TIMER_SLACK_MS));
 		const left = end - performance.now();
 		// blocks this thread (the reader's) for at most the slack, without spinning a core
-		if (left > 0) Atomics.wait(parked, 0, 0, left);
+		if (left > 0) Atomics.wait((parked ??= new Int32Array(new SharedArrayBuffer(4))), 0, 0, left);
 	}
 };
 
