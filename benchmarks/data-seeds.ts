@@ -4,7 +4,7 @@
  * calibration sees two data seeds; this shows how far a third may fall from them.
  *
  * Run: npx tsx benchmarks/data-seeds.ts [--strategy stream] [--rows 77120] [--features 100000] [--k 40] [--p 0.3]
- *      [--values real] [--loss hinge] [--C 1] [--fraction 0.3] [--disk 107] [--seeds 1,3,11,12]
+ *      [--values real] [--loss hinge] [--C 1] [--fraction 0.3] [--disk 107] [--seeds 1,3,11,12] [--index-range N]
  * The defaults are validation job 10's shape at its calibration's top rung (benchmarks/validate.ts).
  */
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -12,9 +12,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseArgs } from 'node:util';
 import type { Loss, StrategyName, ValueKind } from '../src/lib/engine/types.js';
-import { generateToFile, GENERATE_DEFAULTS } from '../src/lib/engine/data/generate.js';
 import { train } from '../src/lib/engine/solver/train.js';
 import { budgetForRows, rowsInRamBytes } from '../src/lib/engine/model/sizes.js';
+import { writeShape, type DataShape } from './shapes.js';
 
 const { values: a } = parseArgs({
 	options: {
@@ -28,29 +28,29 @@ const { values: a } = parseArgs({
 		C: { type: 'string', default: '1' },
 		fraction: { type: 'string', default: '0.3' },
 		disk: { type: 'string', default: '107' },
-		seeds: { type: 'string', default: '1,3,11,12' }
+		seeds: { type: 'string', default: '1,3,11,12' },
+		'index-range': { type: 'string' }
 	}
 });
 const strategy = a.strategy as StrategyName;
-const rows = Number(a.rows);
-const features = Number(a.features);
-const k = Number(a.k);
-const values = a.values as ValueKind;
-const loss = a.loss as Loss;
-const budget = strategy === 'memory' ? undefined : budgetForRows(strategy, rows, features, loss === 'logistic', Number(a.fraction) * rowsInRamBytes(rows, k, values));
+const shape: DataShape = { rows: Number(a.rows), features: Number(a.features), k: Number(a.k), p: Number(a.p), values: a.values as ValueKind, loss: a.loss as Loss, C: Number(a.C) };
+const { rows, features, k, values, loss } = shape;
+// the same rows with their features spread over more indices, as calibration sets draw them
+const indexRange = a['index-range'] === undefined ? features : Number(a['index-range']);
+const budget = strategy === 'memory' ? undefined : budgetForRows(strategy, rows, indexRange, loss === 'logistic', Number(a.fraction) * rowsInRamBytes(rows, k, values));
 const dir = mkdtempSync(join(tmpdir(), 'loadline-seeds-'));
 const lines = ['| data seed | solver seed | epochs | passes | wall s |', '|---:|---:|---:|---:|---:|'];
 try {
 	for (const seed of a.seeds.split(',').map(Number)) {
 		const path = join(dir, `rows-${seed}.bin`);
-		await generateToFile({ rows, features, nnz: k, positive: Number(a.p), noise: GENERATE_DEFAULTS.noise, skew: GENERATE_DEFAULTS.skew, values, seed }, path, 'bin');
+		await writeShape(shape, path, seed, { indexRange });
 		for (const solverSeed of [1, 2]) {
-			const r = await train({ data: path, loss, C: Number(a.C), tol: 0.01, strategy, seed: solverSeed, memoryBytes: budget, diskMBps: Number(a.disk) });
+			const r = await train({ data: path, loss, C: shape.C, tol: 0.01, strategy, seed: solverSeed, memoryBytes: budget, diskMBps: Number(a.disk) });
 			lines.push(`| ${seed} | ${solverSeed} | ${r.epochs.toFixed(1)} | ${r.passes} | ${r.wallSeconds.toFixed(2)} |`);
 		}
 	}
 } finally {
 	rmSync(dir, { recursive: true, force: true });
 }
-console.log(`${strategy}, ${rows} rows × ${k} nonzeros, d = ${features}, ${values}, ${loss}, C = ${a.C}, budget ${budget ?? 'unlimited'} bytes (${a.fraction} of the rows), ${a.disk} MB/s; date ${new Date().toISOString()}`);
+console.log(`${strategy}, ${rows} rows × ${k} nonzeros, d = ${features}${indexRange !== features ? ` spread over ${indexRange} indices` : ''}, ${values}, ${loss}, C = ${a.C}, budget ${budget ?? 'unlimited'} bytes (${a.fraction} of the rows), ${a.disk} MB/s; date ${new Date().toISOString()}`);
 console.log(lines.join('\n'));
