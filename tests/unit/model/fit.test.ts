@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { evalLinear, features, fitModel } from '../../../src/lib/engine/model/fit.js';
+import { evalLinear, features, fitModel, rowsTerm } from '../../../src/lib/engine/model/fit.js';
 import { fitLinear } from '../../../src/lib/engine/model/least-squares.js';
 import { predict } from '../../../src/lib/engine/model/predict.js';
 import { aPlan } from './plan-factory.js';
@@ -34,6 +34,30 @@ describe('fitModel', () => {
 			return Math.exp(evalLinear(f, at));
 		};
 		expect(Math.abs(unweighted(stray.runs) / unweighted(rec.runs) - 1)).toBeGreaterThan(0.15);
+	});
+
+	it('reads epochs that settle with rows as settling: a finite-size term fading like 1/n extrapolates to its limit', () => {
+		const rec = aRecord();
+		// memory epochs 300 · exp(−1.5 · 1000/n): 67 at 1 000 rows, 251 at 8 000, 289 at 40 000, 300 in the limit
+		// (an invented law in the model's own form: the fit must recover it)
+		const settle = (n: number) => 300 * Math.exp(-1.5 * (1000 / n));
+		const runs = [1000, 2000, 4000, 8000].map((rows) => ({ ...rec.runs.find((r) => r.strategy === 'memory')!, rows, epochs: settle(rows) }));
+		const fit = fitModel({ ...rec, runs }).strategies.memory!;
+		const at = (rows: number) => Math.exp(evalLinear(fit.epochs, features({ rows, cacheFraction: 1, updatesPerRead: 1 })));
+		expect(at(40_000) / settle(40_000)).toBeCloseTo(1, 6);
+		expect(at(1e9)).toBeLessThan(300.001);
+		// ln ln n through the same four rungs would keep climbing: over 400 epochs at 40 000 rows
+		const lnln = fitLinear(runs.map((r) => [Math.log(Math.log(r.rows))]), runs.map((r) => Math.log(r.epochs)));
+		expect(Math.exp(evalLinear(lnln, [Math.log(Math.log(40_000))]))).toBeGreaterThan(400);
+	});
+
+	it('holds the curves flat below the smallest calibrated rows, where nothing was measured', () => {
+		const rec = aRecord();
+		const smallest = fitModel(rec).strategies.memory!.rowsMin;
+		const plan = aPlan();
+		const epochs = (rows: number) => predict({ ...plan, dataset: { ...plan.dataset, rows } }, rec).strategies.find((e) => e.strategy === 'memory')!.epochs;
+		expect(epochs(Math.round(smallest / 10))).toBeCloseTo(epochs(smallest), 9);
+		expect(rowsTerm(smallest / 10)).toBeLessThan(rowsTerm(smallest));
 	});
 
 	it('widens the range by how much the machine speed moved during the calibration', () => {

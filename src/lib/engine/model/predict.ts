@@ -8,7 +8,7 @@
 import type { Plan } from '../../schemas/plan.js';
 import type { StrategyName } from '../types.js';
 import type { CalibrationRecord } from '../calibrate/record.js';
-import { extraNsForRows, fitModel, kernelNs, evalLinear, lnLnRows, trainerRowBytes, type FittedModel, type StrategyFit } from './fit.js';
+import { extraNsForRows, fitModel, kernelNs, evalLinear, rowsTerm, trainerRowBytes, type FittedModel, type StrategyFit } from './fit.js';
 import { binaryBytes, bytesOnDisk, formatBytes, textBytes, usableRamBytes, weightBytes } from './sizes.js';
 import type { Estimate, Range3, StrategyEstimate } from './estimate.js';
 import { budgetShape, RUNTIME_BYTES, updatesPerRead as ratioUpdatesPerRead } from './ratios.js';
@@ -95,7 +95,8 @@ function estimateOne(ctx: Context, s: StrategyName, fit: StrategyFit | undefined
 	// seconds per byte read: the disk (with the throttle's measured overhead) or decoding, whichever is slower
 	const perByte = Math.max(f.throttleRatio / ctx.diskBps, ctx.cpuScale / f.decodeBps);
 	const updatesPerRead = ratioUpdatesPerRead(ctx.binBytes / rows, 1 / perByte, ctx.tUpdate);
-	const x = [lnLnRows(rows), Math.log(cacheFraction), Math.log(updatesPerRead)];
+	// below the smallest calibrated rows the curves are held flat: 1 − n₀/n falls steeply there, and nothing was measured
+	const x = [rowsTerm(Math.max(rows, f.rowsMin)), Math.log(cacheFraction), Math.log(updatesPerRead)];
 	const passesFree = s === 'memory' ? 1 : Math.max(1, Math.exp(evalLinear(f.passes, x)));
 	const epochsFree = Math.exp(evalLinear(f.epochs, x));
 	// the engine stops at its epoch limit: the work beyond it is not done (and the gap stays above tol)
