@@ -88,7 +88,11 @@ function boundsFor(strategy: StrategyName): Record<'passes' | 'updates' | 'miss'
  */
 const RUNG_WEIGHT_POWER = 2;
 
-/** n₀ of the rows term; any constant gives the same fit (the term is affine in n₀/rows), this one keeps the rungs' terms in [0, 1) */
+/**
+ * n₀ of the rows term. Any constant gives the same fit (the term is affine in n₀/rows) except where
+ * least squares pins a column that spreads under 0.05: with 1 000, a ladder whose rungs all lie above
+ * 20 000 rows gets slope 0, and there the term has under 0.05 left to move, so that costs little.
+ */
 const ROWS_REF = 1000;
 
 /**
@@ -233,7 +237,8 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 	const decodeBps = free.length > 0 ? median(free.map(implied)) : Math.max(rec.decode.binaryMBps * 1e6, ...runs.map(implied));
 	const throttled = runs.filter((r) => r.diskMBps !== null && r.diskMBps * 1e6 < decodeBps);
 	// taken at the largest throttled rows: small files read in a few requests, whose fixed costs and
-	// overlap with compute do not carry to a plan's size (measured read ratios settle as rows grow)
+	// overlap with compute do not carry to a plan's size (measured read ratios settle as rows grow). Still so
+	// with sub-millisecond waits served: the median over every throttled run back-tests worse (4×: wall 18 → 22 %)
 	const throttledTop = Math.max(...throttled.map((r) => r.rows));
 	const throttleRatio = throttled.length > 0 ? median(throttled.filter((r) => r.rows === throttledTop).map((r) => (r.readSeconds * r.diskMBps! * 1e6) / (r.passes * r.bytesOnDisk))) : 1;
 	// wall − read − compute = overhead + bookkeeping × rows × passes − overlap × min(read, compute). Only stream reads
