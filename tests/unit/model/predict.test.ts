@@ -10,6 +10,19 @@ import { aRecord } from './record-factory.js';
 const record = aRecord();
 const twisted = aRecord({ twisted: true });
 const deep = aRecord({ footprint: true });
+// stream runs whose passes, epochs and updates fall like 1/n² with rows: steeper than the fit may follow
+const falling = (() => {
+	const rec = aRecord();
+	const by = (rows: number) => (2000 / rows) ** 2;
+	return {
+		...rec,
+		runs: rec.runs.map((r) =>
+			r.strategy === 'stream'
+				? { ...r, passes: r.passes * by(r.rows), epochs: r.epochs * by(r.rows), updates: r.updates * by(r.rows), readSeconds: r.readSeconds * by(r.rows), computeSeconds: r.computeSeconds * by(r.rows), wallSeconds: r.wallSeconds * by(r.rows) }
+				: r
+		)
+	};
+})();
 const wall = (plan: Plan, s: StrategyName, rec = record) => predict(plan, rec).strategies.find((e) => e.strategy === s)!.wallSeconds;
 
 describe('memory feasibility', () => {
@@ -50,7 +63,7 @@ describe('monotonicity over a grid', () => {
 	const nonDecreasing = (xs: number[]) => xs.every((x, i) => i === 0 || x >= xs[i - 1] * (1 - 1e-12));
 	const nonIncreasing = (xs: number[]) => xs.every((x, i) => i === 0 || x <= xs[i - 1] * (1 + 1e-12));
 
-	for (const [name, rec] of [['fitted laws', record], ['wrong-sign noise', twisted], ['rows beyond the caches', deep]] as const) {
+	for (const [name, rec] of [['fitted laws', record], ['wrong-sign noise', twisted], ['rows beyond the caches', deep], ['stream falling with rows', falling]] as const) {
 		it(`more RAM never makes memory, selective or stream slower (${name})`, () => {
 			for (const s of ['memory', 'selective', 'stream'] as const)
 				for (const rows of [1e6, 1e8, 1e9]) {
@@ -76,6 +89,20 @@ describe('monotonicity over a grid', () => {
 				}
 		});
 	}
+});
+
+describe('stream ladders that fall with rows', () => {
+	it('let stream fall only as far as keeps total work rising, and only stream', () => {
+		const fit = fitModel(falling).strategies.stream!;
+		// smallest rungs at 2 000 rows: the slope on 1 − 1000/n may reach −min(1, 2000/1000) = −1
+		for (const curve of [fit.passes, fit.epochs, fit.updatesPerRow]) expect(curve.coef[1]).toBeCloseTo(-1, 9);
+		const selective = fitModel({ ...falling, runs: falling.runs.map((r) => (r.strategy === 'selective' ? { ...r, epochs: r.epochs * (2000 / r.rows) ** 2 } : r)) }).strategies.selective!;
+		expect(selective.epochs.coef[1]).toBe(0);
+		// near and below the smallest rung, where the term moves most, wall time still never falls as rows grow
+		const plan = aPlan({ dataset: { features: 1e6, nnzPerRow: 40 }, machine: { ramGiB: 64 } });
+		const p50 = [500, 1000, 2000, 2500, 3000, 4000, 6000, 1e4, 1e5].map((rows) => wall({ ...plan, dataset: { ...plan.dataset, rows } }, 'stream', falling).p50);
+		expect(p50.every((x, i) => i === 0 || x >= p50[i - 1] * (1 - 1e-12)), p50.map((x) => x.toPrecision(3)).join(', ')).toBe(true);
+	});
 });
 
 describe('worked example', () => {

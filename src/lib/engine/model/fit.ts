@@ -67,7 +67,7 @@ export interface FittedModel {
 const NONNEG: SlopeBounds = [0, Infinity];
 const NONPOS: SlopeBounds = [-Infinity, 0];
 const NONE: SlopeBounds = [0, 0];
-function boundsFor(strategy: StrategyName): Record<'passes' | 'updates' | 'miss' | 'epochs', SlopeBounds[]> {
+function boundsFor(strategy: StrategyName, rowsMin: number): Record<'passes' | 'updates' | 'miss' | 'epochs', SlopeBounds[]> {
 	// memory: one load, then RAM only; neither the cache fraction nor the reader speed enters
 	if (strategy === 'memory') return { passes: [NONNEG, NONE, NONE], updates: [NONNEG, NONE, NONE], miss: [FREE, NONE, NONE], epochs: [NONNEG, NONE, NONE] };
 	// block: more rows → more blocks; total updates ∝ n^(1 + b − c) must not fall, so c ≤ 1 + b with b ≥ 0
@@ -76,7 +76,12 @@ function boundsFor(strategy: StrategyName): Record<'passes' | 'updates' | 'miss'
 	// selective and stream: more RAM (larger fraction) never needs more passes or updates
 	// stream: a faster disk (fewer updates per read r) must not cost time: passes ∝ r^γ with γ ∈ [−1, 0], updates rise with r
 	const stream = strategy === 'stream';
-	return { passes: [NONNEG, NONPOS, stream ? [-1, 0] : NONE], updates: [NONNEG, NONPOS, stream ? NONNEG : NONE], miss: [FREE, FREE, stream ? FREE : NONE], epochs: [NONNEG, FREE, stream ? FREE : NONE] };
+	// stream's ladders often need fewer epochs and passes as rows grow (one calibration: 164 → 102 epochs from 2 400 to
+	// 19 000 rows), and the back-test prefers letting them fall (results/backtest.md). A slope of b on
+	// 1 − n₀/n changes ln(n × epochs) by 1 + b·n₀/n per ln n, so b ≥ −(smallest rows ÷ n₀), at most 1, keeps total
+	// work and bytes read rising with rows wherever the curves are read (predict holds them flat below that)
+	const rows: SlopeBounds = stream ? [-Math.min(1, rowsMin / ROWS_REF), Infinity] : NONNEG;
+	return { passes: [rows, NONPOS, stream ? [-1, 0] : NONE], updates: [rows, NONPOS, stream ? NONNEG : NONE], miss: [FREE, FREE, stream ? FREE : NONE], epochs: [rows, FREE, stream ? FREE : NONE] };
 }
 
 /**
@@ -216,7 +221,7 @@ function fitCost(model: number[], measured: number[]): { ratio: number; fixed: n
 function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: FootprintPoint[], strategy: StrategyName): StrategyFit | undefined {
 	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0 && r.capped !== true);
 	if (runs.length === 0) return undefined;
-	const b = boundsFor(strategy);
+	const b = boundsFor(strategy, Math.min(...runs.map((r) => r.rows)));
 	const xs = runs.map(features);
 	// the curves are read beyond the largest run, so the runs nearest it weigh most: (rows / largest)²
 	const rowsTop = Math.max(...runs.map((r) => r.rows));
