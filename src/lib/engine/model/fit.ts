@@ -63,14 +63,15 @@ export interface FittedModel {
 	strategies: Partial<Record<StrategyName, StrategyFit>>;
 }
 
-/** Bounds on [ln rows, ln cacheFraction, ln updatesPerRead] per quantity and strategy. */
+/** Bounds on [rows term, ln cacheFraction, ln updatesPerRead] per quantity and strategy. */
 const NONNEG: SlopeBounds = [0, Infinity];
 const NONPOS: SlopeBounds = [-Infinity, 0];
 const NONE: SlopeBounds = [0, 0];
 function boundsFor(strategy: StrategyName, rowsMin: number): Record<'passes' | 'updates' | 'miss' | 'epochs', SlopeBounds[]> {
 	// memory: one load, then RAM only; neither the cache fraction nor the reader speed enters
 	if (strategy === 'memory') return { passes: [NONNEG, NONE, NONE], updates: [NONNEG, NONE, NONE], miss: [FREE, NONE, NONE], epochs: [NONNEG, NONE, NONE] };
-	// block: more rows → more blocks; total updates ∝ n^(1 + b − c) must not fall, so c ≤ 1 + b with b ≥ 0
+	// block: more rows → more blocks; at a fixed budget (fraction ∝ 1/n) ln of total updates moves by 1 + b·n₀/n − c per
+	// ln n for rows slope b and fraction slope c, so b ≥ 0 and c ≤ 1 keep it from falling
 	// block and selective read, then solve, one block at a time: the reader speed does not enter convergence
 	if (strategy === 'block') return { passes: [NONNEG, NONPOS, NONE], updates: [NONNEG, [-Infinity, 1], NONE], miss: [FREE, FREE, NONE], epochs: [NONNEG, FREE, NONE] };
 	// selective and stream: more RAM (larger fraction) never needs more passes or updates
