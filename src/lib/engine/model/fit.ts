@@ -222,11 +222,12 @@ function fitCost(model: number[], measured: number[]): { ratio: number; fixed: n
 function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: FootprintPoint[], strategy: StrategyName): StrategyFit | undefined {
 	const runs = rec.runs.filter((r) => r.strategy === strategy && r.updates > 0 && r.capped !== true);
 	if (runs.length === 0) return undefined;
-	const b = boundsFor(strategy, Math.min(...runs.map((r) => r.rows)));
+	const rowsMin = Math.min(...runs.map((r) => r.rows));
+	const rowsMax = Math.max(...runs.map((r) => r.rows));
+	const b = boundsFor(strategy, rowsMin);
 	const xs = runs.map(features);
 	// the curves are read beyond the largest run, so the runs nearest it weigh most: (rows / largest)²
-	const rowsTop = Math.max(...runs.map((r) => r.rows));
-	const weights = runs.map((r) => (r.rows / rowsTop) ** RUNG_WEIGHT_POWER);
+	const weights = runs.map((r) => (r.rows / rowsMax) ** RUNG_WEIGHT_POWER);
 	const k = rec.plan.dataset.nnzPerRow;
 	// runs are taken as they ran: a short reference measurement before them tracks the machine's load worse than
 	// the runs themselves do, so each run's referenceNs is kept in the record but not divided out
@@ -289,8 +290,8 @@ function fitStrategy(rec: CalibrationRecord, kernel: KernelLine[], footprint: Fo
 		overheadSeconds: Math.max(0, lap.coef[0]) + computeFixed,
 		secondsPerRowPass: lap.coef[2] / scaleRowPasses,
 		seedSpread: dof > 0 ? Math.sqrt(ss / dof) : 0.1,
-		rowsMax: Math.max(...runs.map((r) => r.rows)),
-		rowsMin: Math.min(...runs.map((r) => r.rows)),
+		rowsMax,
+		rowsMin,
 		fractionRange: [Math.min(...runs.map((r) => r.cacheFraction)), Math.max(...runs.map((r) => r.cacheFraction))],
 		updatesPerReadRange: [Math.min(...runs.map((r) => r.updatesPerRead)), Math.max(...runs.map((r) => r.updatesPerRead))]
 	};
